@@ -1,0 +1,63 @@
+import "server-only";
+import path from "node:path";
+import { z } from "zod";
+
+/*
+ * The one place that reads process.env. Scripts (db server, knex CLI, seeds) load it too;
+ * they run under the `react-server` export condition so that `server-only` resolves.
+ */
+
+const booleanFlag = z
+  .enum(["true", "false", "1", "0", "yes", "no"])
+  .transform((v) => v === "true" || v === "1" || v === "yes");
+
+const schema = z.object({
+  NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
+  DATABASE_URL: z
+    .string()
+    .regex(/^mysql:\/\//, "DATABASE_URL must start with mysql://")
+    .optional(),
+  DB_PORT: z.coerce.number().int().min(1).max(65535).default(3307),
+  DB_NAME: z
+    .string()
+    .regex(/^[A-Za-z0-9_]+$/, "DB_NAME may contain letters, digits and _ only")
+    .default("gloaming"),
+  APP_URL: z.url().default("http://localhost:3000"),
+  DATA_DIR: z.string().min(1).default(".data"),
+  DEMO_MODE: booleanFlag.optional(),
+});
+
+const parsed = schema.safeParse(process.env);
+if (!parsed.success) {
+  const problems = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
+  throw new Error(`Invalid environment:\n${problems}`);
+}
+const raw = parsed.data;
+
+/** Credentials of the private loopback server; it listens on 127.0.0.1 only. */
+export const privateServer = {
+  host: "127.0.0.1",
+  port: raw.DB_PORT,
+  user: "gloaming",
+  password: "gloaming-local",
+} as const;
+
+const dataDir = path.resolve(raw.DATA_DIR);
+
+export const env = {
+  NODE_ENV: raw.NODE_ENV,
+  /** True when the app uses its own private server (DATABASE_URL was not given). */
+  USES_PRIVATE_SERVER: raw.DATABASE_URL === undefined,
+  DATABASE_URL:
+    raw.DATABASE_URL ??
+    `mysql://${privateServer.user}:${privateServer.password}@${privateServer.host}:${privateServer.port}/${raw.DB_NAME}`,
+  DB_PORT: raw.DB_PORT,
+  DB_NAME: raw.DB_NAME,
+  APP_URL: raw.APP_URL,
+  /** Absolute path of the app's data directory (database files, uploads). */
+  DATA_DIR: dataDir,
+  DEMO_MODE: raw.DEMO_MODE ?? raw.NODE_ENV !== "production",
+  SESSION_SECURE: raw.APP_URL.startsWith("https://"),
+} as const;
+
+export type Env = typeof env;
