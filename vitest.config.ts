@@ -14,7 +14,11 @@ export default defineConfig({
     exclude: ["node_modules", ".data", ".next"],
     // knex migrations/seeds are TypeScript and need the tsx loader in forks.
     execArgv: ["--import", "tsx"],
+    // A fresh, migrated database per run; workers get its URL through inject("databaseUrl").
+    globalSetup: ["./tests/global-setup.ts"],
+    setupFiles: ["./tests/setup.ts"],
     testTimeout: 30_000,
-    hookTimeout: 120_000,
+    // Browser tests build the app once per run inside a beforeAll.
+    hookTimeout: 600_000,
   },
 });

@@ -1,0 +1,72 @@
+/*
+ * Once per `vitest run`: makes sure the database server answers, creates a fresh database
+ * for this run, migrates it from zero with the stock knex CLI and drops it afterwards.
+ */
+import { spawnSync } from "node:child_process";
+import { randomBytes } from "node:crypto";
+import { createConnection } from "mysql2/promise";
+import type { TestProject } from "vitest/node";
+import { connectionOptions } from "@/lib/db/connection";
+import { env } from "@/lib/env";
+import { startDatabase } from "@/scripts/db";
+
+declare module "vitest" {
+  export interface ProvidedContext {
+    /** mysql:// URL of this run's database */
+    databaseUrl: string;
+    /** unique id of this test run (used to build the app once per run) */
+    testRunId: string;
+  }
+}
+
+const STALE_HOURS = 6;
+
+export default async function setup(project: TestProject) {
+  await startDatabase();
+  const base = new URL(env.DATABASE_URL);
+  const baseName = decodeURIComponent(base.pathname.slice(1)) || "gloaming";
+  const runId = randomBytes(4).toString("hex");
+  const name = `${baseName}_test_${runId}`;
+
+  const admin = await createConnection({ ...connectionOptions(env.DATABASE_URL), database: undefined });
+  // Leftovers of interrupted runs.
+  const [stale] = (await admin.query(
+    `SELECT table_schema AS name FROM information_schema.tables
+      WHERE table_schema LIKE ? GROUP BY table_schema
+     HAVING MIN(create_time) < NOW() - INTERVAL ${STALE_HOURS} HOUR`,
+    [`${baseName.replace(/_/g, "\\_")}\\_test\\_%`],
+  )) as unknown as [Array<{ name: string }>];
+  for (const s of stale) await admin.query(`DROP DATABASE IF EXISTS \`${s.name}\``);
+  await admin.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
+
+  const url = new URL(env.DATABASE_URL);
+  url.pathname = `/${name}`;
+  const databaseUrl = url.toString();
+
+  const migrate = spawnSync(
+    process.execPath,
+    [
+      "--conditions=react-server",
+      "--import",
+      "tsx",
+      "node_modules/knex/bin/cli.js",
+      "migrate:latest",
+      "--knexfile",
+      "knexfile.ts",
+    ],
+    { cwd: project.config.root, env: { ...process.env, DATABASE_URL: databaseUrl }, encoding: "utf8" },
+  );
+  if (migrate.status !== 0) {
+    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
+    await admin.end();
+    throw new Error(`Migrating the test database failed:\n${migrate.stdout}\n${migrate.stderr}`);
+  }
+
+  project.provide("databaseUrl", databaseUrl);
+  project.provide("testRunId", runId);
+
+  return async () => {
+    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
+    await admin.end();
+  };
+}
