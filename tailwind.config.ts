@@ -25,11 +25,14 @@ const config: Config = {
           900: "#1c1d36",
           950: "#111222",
         },
+        // Hues follow the Okabe-Ito idea (bluish green, orange, blue, grey) and differ in
+        // lightness too, so they stay apart under deuteranopia and protanopia; each fill
+        // meets 4.5:1 against its glyph colour (white, or dusk-950 on orange).
         label: {
-          local: "#2f8f6b",
-          stagnant: "#c9822b",
-          advective: "#3f6fc4",
-          unclassified: "#8a8a94",
+          local: "#1f7a5c",
+          stagnant: "#d08a1e",
+          advective: "#2f63b8",
+          unclassified: "#6b6b78",
         },
       },
     },

@@ -1,0 +1,34 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { roleAtLeast } from "@/lib/auth/roles";
+import { FormMessage } from "@/lib/ui/field";
+import { PageHeader } from "@/lib/ui/page-header";
+import { SiteForm } from "@/features/sites/components/site-form";
+import { updateSiteAction } from "@/features/sites/server/actions";
+import { loadSiteForPage } from "@/features/sites/server/page-data";
+
+export const metadata: Metadata = { title: "Edit site" };
+
+export default async function EditSitePage({ params }: { params: Promise<{ siteId: string }> }) {
+  const { site, role } = await loadSiteForPage((await params).siteId);
+  const back = `/sites/${site.id}`;
+  return (
+    <>
+      <PageHeader
+        eyebrow={
+          <Link href={back} className="hover:underline">
+            ← {site.name}
+          </Link>
+        }
+        title="Edit site"
+      />
+      <div className="card max-w-3xl p-6">
+        {roleAtLeast(role, "lead") ? (
+          <SiteForm action={updateSiteAction.bind(null, site.id)} site={site} submitLabel="Save changes" cancelHref={back} />
+        ) : (
+          <FormMessage tone="info">Only a lead of this group can edit its sites.</FormMessage>
+        )}
+      </div>
+    </>
+  );
+}
