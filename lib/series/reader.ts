@@ -24,7 +24,6 @@
  *  - A row whose timestamp cannot be read is fatal (TableError) unless badTimestamp is "skip".
  */
 import { createReadStream, statSync } from "node:fs";
-import { Readable } from "node:stream";
 import Papa from "papaparse";
 import {
   canonicalUnit,
@@ -97,6 +96,11 @@ export interface ReadOptions {
   maxRejected?: number;
   /** Expected number of data rows, to size the arrays once. */
   expectedRows?: number;
+  /**
+   * Use the quote-free fast path for data lines (default true); false sends every line
+   * through papaparse. Both give the same table and report.
+   */
+  fastPath?: boolean;
   /** Size of the input in bytes, when known, to size the arrays once. */
   sizeHintBytes?: number;
   /** Called after every parsed chunk. */
@@ -165,6 +169,13 @@ export interface ReadReport {
 export type TableInput = NodeJS.ReadableStream | AsyncIterable<Uint8Array | string> | string;
 
 const HEADER_SEARCH_LINES = 10;
+const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
+
+function quoteCount(text: string, end: number): number {
+  let n = 0;
+  for (let i = text.indexOf('"'); i >= 0 && i < end; i = text.indexOf('"', i + 1)) n++;
+  return n;
+}
 const MAX_META_LINES = 5;
 
 async function* decodeText(input: TableInput, counter: { bytes: number }): AsyncGenerator<string> {
@@ -312,13 +323,14 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   let unitsLine: number | null = null;
   const skippedLines: number[] = [];
   const pending: { line: number; cells: string[] }[] = [];
-  let phase: "header" | "meta" | "data" = "header";
+  let phase = "header" as "header" | "meta" | "data";
   let headers: string[] = [];
-  let plan: ColumnPlan | null = null;
+  let plan = null as ColumnPlan | null;
   let unitsRow: string[] | undefined;
-  let store: Store | null = null;
+  let store = null as Store | null;
   let colIndex: Int32Array = new Int32Array(0);
   let colHeaders: string[] = [];
+  let fieldRole: Int32Array = new Int32Array(0);
   let missingCount: Int32Array = new Int32Array(0);
   let notNumericCount: Int32Array = new Int32Array(0);
   let fieldCountLines: number[] = [];
@@ -363,6 +375,10 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     else [tsA, tsB] = [ts.date, ts.time];
     colIndex = Int32Array.from(plan.columns.map((c) => c.index));
     colHeaders = plan.columns.map((c) => c.header);
+    fieldRole = new Int32Array(headers.length).fill(-1);
+    plan.columns.forEach((c, k) => {
+      fieldRole[c.index] = k;
+    });
     missingCount = new Int32Array(colIndex.length);
     notNumericCount = new Int32Array(colIndex.length);
     store = new Store(colIndex.length, options.expectedRows ?? 4096, ts.kind === "pair");
@@ -404,12 +420,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
         phase = "data";
       }
       if (a !== a || b !== b) {
-        const bad = a !== a ? aText : (bText ?? "");
-        const col = a !== a ? (tsKind === "dateTime" ? `${headers[tsA]} + ${headers[tsB]}` : headers[tsA]) : headers[tsB];
-        const msg = `cannot read the timestamp "${bad}" in column ${col} (expected YYYYMMDDHHMM, ISO 8601 or YYYY-MM-DD HH:MM)`;
-        if (badTimestamp === "error") throw new TableError(line, msg);
-        skippedBadTimestamps++;
-        reject(line, col ?? "", bad, msg);
+        badStamp(a !== a ? aText : (bText ?? ""), a !== a);
         continue;
       }
       if (cells.length !== headers.length) {
@@ -423,48 +434,178 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
       cur.line[i] = line;
       const data = cur.data;
       for (let k = 0; k < colIndex.length; k++) {
-        const cell = cells[colIndex[k] as number];
-        const col = data[k] as Float64Array;
-        if (cell === undefined || cell === "") {
-          col[i] = NaN;
-          if (emptyIsMissing || cell === undefined) missingCount[k]!++;
-          else {
-            notNumericCount[k]!++;
-            reject(line, colHeaders[k] as string, "", "empty cell is not a missing code here");
+        (data[k] as Float64Array)[i] = cellValue(cells[colIndex[k] as number], k, line);
+      }
+    }
+  };
+
+  /** Value of one cell, counting missing and rejected cells. Shared by both paths. */
+  const cellValue = (cell: string | undefined, k: number, at: number): number => {
+    if (cell === undefined || cell === "") {
+      if (emptyIsMissing || cell === undefined) missingCount[k]!++;
+      else {
+        notNumericCount[k]!++;
+        reject(at, colHeaders[k] as string, "", "empty cell is not a missing code here");
+      }
+      return NaN;
+    }
+    const v = Number(cell);
+    if (v !== v) {
+      if (missingText.has(cell.trim().toLowerCase())) missingCount[k]!++;
+      else {
+        notNumericCount[k]!++;
+        reject(at, colHeaders[k] as string, cell, "not a number");
+      }
+      return NaN;
+    }
+    if (v === 0 && cell.trim() === "") {
+      if (emptyIsMissing) missingCount[k]!++;
+      else {
+        notNumericCount[k]!++;
+        reject(at, colHeaders[k] as string, cell, "blank cell is not a missing code here");
+      }
+      return NaN;
+    }
+    if (!Number.isFinite(v)) {
+      notNumericCount[k]!++;
+      reject(at, colHeaders[k] as string, cell, "not a finite number");
+      return NaN;
+    }
+    return numericCheck(v, k);
+  };
+
+  const numericCheck = (v: number, k: number): number => {
+    for (let m = 0; m < missingNumbers.length; m++) {
+      if (v === missingNumbers[m]) {
+        missingCount[k]!++;
+        return NaN;
+      }
+    }
+    return v;
+  };
+
+  /**
+   * Fast path for the data lines of a portion without quote characters, the usual case for
+   * tower files: fields are located with indexOf and plain decimals are converted from their
+   * digits (an integer of at most 15 digits divided by an exact power of ten is the correctly
+   * rounded value, so it equals Number(); Clinger 1990). Anything else (exponents, text,
+   * whitespace, long mantissas) goes through Number() and the shared cell logic. Tests check
+   * it against the papaparse path on generated files.
+   */
+  const scanFast = (text: string): void => {
+    const cur = store as Store;
+    const nFields = headers.length;
+    const role = fieldRole;
+    const delim = delimiter;
+        const len = text.length;
+    const lastTsField = Math.max(tsA, tsB);
+    let pos = 0;
+    while (pos <= len) {
+      let eol = text.indexOf("\n", pos);
+      if (eol < 0) eol = len;
+      let lineEnd = eol;
+      if (lineEnd > pos && text.charCodeAt(lineEnd - 1) === 13) lineEnd--;
+      line++;
+      const lineStart = pos;
+      pos = eol + 1;
+      const firstDelim = text.indexOf(delim, lineStart);
+      if ((firstDelim < 0 || firstDelim >= lineEnd) && text.slice(lineStart, lineEnd).trim() === "") continue;
+
+      // Pass 1: the timestamp fields (usually the first ones).
+      let aText: string | undefined;
+      let bText: string | undefined;
+      let field = 0;
+      let fs = lineStart;
+      while (fs <= lineEnd && field <= lastTsField) {
+        let fe = text.indexOf(delim, fs);
+        if (fe < 0 || fe > lineEnd) fe = lineEnd;
+        if (field === tsA) aText = text.slice(fs, fe);
+        else if (field === tsB) bText = text.slice(fs, fe);
+        field++;
+        fs = fe + 1;
+      }
+      const stamp = tsKind === "dateTime" ? `${aText ?? ""} ${(bText ?? "").trim()}`.trim() : (aText ?? "");
+      const a = parseTimestamp(stamp, clockOffsetMinutes);
+      const b = tsKind === "pair" ? parseTimestamp(bText ?? "", clockOffsetMinutes) : 0;
+      if (a !== a || b !== b) {
+        badStamp(a !== a ? stamp : (bText ?? ""), a !== a);
+        continue;
+      }
+
+      // Pass 2: the value fields.
+      if (cur.n === cur.cap) cur.grow();
+      const i = cur.n++;
+      cur.stampA[i] = a;
+      if (tsKind === "pair") cur.stampB[i] = b;
+      cur.line[i] = line;
+      const data = cur.data;
+      field = 0;
+      fs = lineStart;
+      let found = 0;
+      while (fs <= lineEnd) {
+        let fe = text.indexOf(delim, fs);
+        if (fe < 0 || fe > lineEnd) fe = lineEnd;
+        const r = field < nFields ? (role[field] as number) : -1;
+        if (r >= 0) {
+          found++;
+          let p = fs;
+          let neg = false;
+          let c = p < fe ? text.charCodeAt(p) : -1;
+          if (c === 45 || c === 43) {
+            neg = c === 45;
+            p++;
           }
-          continue;
-        }
-        let v = Number(cell);
-        if (v !== v) {
-          const t = cell.trim().toLowerCase();
-          if (missingText.has(t)) missingCount[k]!++;
-          else {
-            notNumericCount[k]!++;
-            reject(line, colHeaders[k] as string, cell, "not a number");
-          }
-        } else if (v === 0 && cell.trim() === "") {
-          v = NaN;
-          if (emptyIsMissing) missingCount[k]!++;
-          else {
-            notNumericCount[k]!++;
-            reject(line, colHeaders[k] as string, cell, "blank cell is not a missing code here");
-          }
-        } else if (!Number.isFinite(v)) {
-          v = NaN;
-          notNumericCount[k]!++;
-          reject(line, colHeaders[k] as string, cell, "not a finite number");
-        } else {
-          for (let m = 0; m < missingNumbers.length; m++) {
-            if (v === missingNumbers[m]) {
-              v = NaN;
-              missingCount[k]!++;
+          let mant = 0;
+          let digits = 0;
+          let frac = 0;
+          let dot = false;
+          let ok = p < fe;
+          for (; p < fe; p++) {
+            c = text.charCodeAt(p);
+            if (c >= 48 && c <= 57) {
+              mant = mant * 10 + (c - 48);
+              digits++;
+              if (dot) frac++;
+            } else if (c === 46 && !dot) {
+              dot = true;
+            } else {
+              ok = false;
               break;
             }
           }
+          let v: number;
+          if (ok && digits > 0 && digits <= 15) {
+            v = mant / (POW10[frac] as number);
+            v = numericCheck(neg ? -v : v, r);
+          } else {
+            v = cellValue(text.slice(fs, fe), r, line);
+          }
+          (data[r] as Float64Array)[i] = v;
         }
-        col[i] = v;
+        field++;
+        fs = fe + 1;
+      }
+      if (field !== nFields) {
+        fieldCountProblems++;
+        if (fieldCountLines.length < 10) fieldCountLines.push(line);
+        if (found < colIndex.length) {
+          for (let k = 0; k < colIndex.length; k++) {
+            if ((colIndex[k] as number) >= field) {
+              (data[k] as Float64Array)[i] = NaN;
+              missingCount[k]!++;
+            }
+          }
+        }
       }
     }
+  };
+
+  const badStamp = (bad: string, inA: boolean): void => {
+    const col = inA ? (tsKind === "dateTime" ? `${headers[tsA]} + ${headers[tsB]}` : headers[tsA]) : headers[tsB];
+    const msg = `cannot read the timestamp "${bad}" in column ${col} (expected YYYYMMDDHHMM, ISO 8601 or YYYY-MM-DD HH:MM)`;
+    if (badTimestamp === "error") throw new TableError(line, msg);
+    skippedBadTimestamps++;
+    reject(line, col ?? "", bad, msg);
   };
 
   let delimiter = options.delimiter ?? "";
@@ -472,50 +613,63 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   let resized = false;
   const firstParseErrors: string[] = [];
 
-  const stream = Readable.from(decodeText(input, bytes), { objectMode: true });
-  await new Promise<void>((resolve, reject_) => {
-    let settled = false;
-    const fail = (e: unknown): void => {
-      if (settled) return;
-      settled = true;
-      stream.destroy();
-      reject_(e);
-    };
-    stream.on("error", fail);
-    Papa.parse<string[]>(stream, {
-      delimiter,
-      header: false,
-      dynamicTyping: false,
-      skipEmptyLines: false,
-      chunk: (results, parser) => {
-        if (settled) return;
-        try {
-          if (!delimiter && results.meta.delimiter) delimiter = results.meta.delimiter;
-          for (const e of results.errors) {
-            parseWarnings++;
-            if (firstParseErrors.length < 5) firstParseErrors.push(`${e.message}${e.row !== undefined ? ` (record ${e.row + 1} of a chunk)` : ""}`);
-          }
-          handleRows(results.data);
-          if (!resized && store && options.sizeHintBytes && line > 0 && bytes.bytes > 0) {
-            resized = true;
-            // Size the arrays once from the file size and the bytes per line seen so far.
-            const estimate = Math.ceil((options.sizeHintBytes / bytes.bytes) * line * 1.05) + 16;
-            if (estimate > store.cap) store.resize(Math.min(estimate, 20_000_000));
-          }
-          options.onProgress?.(store?.n ?? 0, bytes.bytes);
-        } catch (e) {
-          parser.abort();
-          fail(e);
-        }
-      },
-      complete: () => {
-        if (settled) return;
-        settled = true;
-        resolve();
-      },
-      error: (e: Error) => fail(e),
-    });
-  });
+  const useFast = options.fastPath !== false;
+  let newline = "";
+  let carry = "";
+  const feed = (portion: string): void => {
+    if (portion.length === 0 && carry === "") return;
+    if (phase === "data" && useFast && delimiter.length === 1 && portion.indexOf('"') < 0) {
+      scanFast(portion);
+    } else {
+      const res = Papa.parse<string[]>(portion, {
+        delimiter,
+        newline: newline as "\n",
+        header: false,
+        dynamicTyping: false,
+        skipEmptyLines: false,
+      });
+      if (!delimiter && res.meta.delimiter) delimiter = res.meta.delimiter;
+      for (const e of res.errors) {
+        parseWarnings++;
+        if (firstParseErrors.length < 5) firstParseErrors.push(`${e.message} (line ${line + (e.row ?? 0) + 1})`);
+      }
+      handleRows(res.data);
+    }
+  };
+  for await (const chunk of decodeText(input, bytes)) {
+    let text = carry + chunk;
+    if (!newline) newline = text.includes("\r\n") ? "\r\n" : text.includes("\n") ? "\n" : text.includes("\r") ? "\r" : "";
+    if (!newline) {
+      carry = text;
+      continue;
+    }
+    // Cut after the last line break that is outside quotes (quotes pair up in CSV, so an odd
+    // count before the cut means a quoted field continues into the next chunk).
+    let cut = text.lastIndexOf(newline);
+    if (text.indexOf('"') >= 0) {
+      while (cut >= 0 && quoteCount(text, cut) % 2 === 1) cut = text.lastIndexOf(newline, cut - 1);
+    }
+    if (cut < 0) {
+      carry = text;
+      continue;
+    }
+    carry = text.slice(cut + newline.length);
+    text = text.slice(0, cut);
+    feed(text);
+    if (!resized && store && options.sizeHintBytes && line > 0 && bytes.bytes > 0) {
+      resized = true;
+      // Size the arrays once from the file size and the bytes per line seen so far.
+      const estimate = Math.ceil((options.sizeHintBytes / bytes.bytes) * line * 1.05) + 16;
+      if (estimate > store.cap) store.resize(Math.min(estimate, 20_000_000));
+    }
+    options.onProgress?.(store?.n ?? 0, bytes.bytes);
+  }
+  if (carry !== "") {
+    const last = carry.endsWith(newline) ? carry.slice(0, -newline.length) : carry;
+    carry = "";
+    if (last !== "") feed(last);
+  }
+  options.onProgress?.(store?.n ?? 0, bytes.bytes);
 
   if (phase === "header") {
     if (line === 0) throw new TableError(1, "the file is empty");
