@@ -1,7 +1,14 @@
 import type { HalfHourTable } from "@/lib/series/types";
-import { eveningSun, localDateOf, localMidnightUtcMs } from "@/lib/physics/sun";
+import { eveningSun, localDateOf, localMidnightUtcMs, type EveningSun } from "@/lib/physics/sun";
 import { quantileSorted } from "simple-statistics";
-import { eveningMetrics, prepareColumns, type ComputedEvening, type EveningMetrics } from "./metrics";
+import {
+  eveningMetrics,
+  prepareColumns,
+  variableCoverage,
+  type ComputedEvening,
+  type EveningMetrics,
+  type PreparedColumns,
+} from "./metrics";
 import { DEFAULT_RULE_SET, type MetricName, type RuleSet, type Threshold } from "./rules";
 import { siteProblems, type SiteParams } from "./site";
 
@@ -26,6 +33,21 @@ export interface EveningResult {
 }
 
 const DAY_MS = 86_400_000;
+
+// Sun times dominate the per-evening cost and do not depend on the data: keep them across calls
+// (re-classifying one site with another rule set is the common case). Bounded; cleared when full.
+const SUN_CACHE_LIMIT = 200_000;
+const sunCache = new Map<string, EveningSun>();
+function cachedEveningSun(date: string, site: SiteParams): EveningSun {
+  const key = `${site.latitudeDeg},${site.longitudeDeg},${site.utcOffsetHours},${date}`;
+  let sun = sunCache.get(key);
+  if (!sun) {
+    if (sunCache.size >= SUN_CACHE_LIMIT) sunCache.clear();
+    sun = eveningSun(date, site.latitudeDeg, site.longitudeDeg, site.utcOffsetHours);
+    sunCache.set(key, sun);
+  }
+  return sun;
+}
 
 const UNIT: Partial<Record<MetricName, string>> = {
   sigmaWAfternoon: "m/s",
@@ -102,23 +124,48 @@ export function classifyTable(table: HalfHourTable, site: SiteParams, rules: Rul
   const first = Math.min(w.afternoon.startMinutes, w.transition.startMinutes, w.evening.startMinutes) * 60_000;
   const last = Math.max(w.afternoon.endMinutes, w.transition.endMinutes, w.evening.endMinutes) * 60_000;
 
-  type Pending = { date: string; sunsetMs: number | null; duskMs: number | null; polar: string | null; c: ComputedEvening | null };
+  type Pending = {
+    date: string;
+    sunsetMs: number | null;
+    duskMs: number | null;
+    polar: string | null;
+    shortDay: boolean;
+    c: ComputedEvening | null;
+  };
   const pending: Pending[] = [];
   const firstDate = localDateOf(spanStart - DAY_MS, site.utcOffsetHours);
   let midnight = localMidnightUtcMs(firstDate, site.utcOffsetHours);
   for (; midnight < spanEnd; midnight += DAY_MS) {
     const date = localDateOf(midnight, site.utcOffsetHours);
-    const sun = eveningSun(date, site.latitudeDeg, site.longitudeDeg, site.utcOffsetHours);
+    const sun = cachedEveningSun(date, site);
     if (sun.sunsetMs === null) {
-      if (midnight + DAY_MS > spanStart) pending.push({ date, sunsetMs: null, duskMs: null, polar: sun.status, c: null });
+      if (midnight + DAY_MS > spanStart)
+        pending.push({ date, sunsetMs: null, duskMs: null, polar: sun.status, shortDay: false, c: null });
       continue;
     }
     if (sun.sunsetMs + last <= spanStart || sun.sunsetMs + first >= spanEnd) continue;
-    pending.push({ date, sunsetMs: sun.sunsetMs, duskMs: sun.civilDuskMs, polar: null, c: eveningMetrics(p, sun.sunsetMs, rules) });
+    const shortDay =
+      rules.requireDaylightAfternoon &&
+      sun.sunriseMs !== null &&
+      sun.sunriseMs > sun.sunsetMs + w.afternoon.startMinutes * 60_000;
+    pending.push({
+      date,
+      sunsetMs: sun.sunsetMs,
+      duskMs: sun.civilDuskMs,
+      polar: null,
+      shortDay,
+      c: eveningMetrics(p, sun.sunsetMs, rules),
+    });
   }
 
   const resolved = resolveThresholds(rules, pending.map((e) => e.c));
-  return pending.map((e) => decide(e.date, e.sunsetMs, e.duskMs, e.polar, e.c, rules, resolved));
+  const ctx: DecideContext = {
+    rules,
+    p,
+    thresholds: Object.entries(rules.thresholds).map(([name, t]) => ({ name, t, value: resolved[name]?.value ?? Number.NaN })),
+    notes: Object.values(resolved).flatMap((r) => (r.note ? [r.note] : [])),
+  };
+  return pending.map((e) => decide(e, ctx));
 }
 
 interface ResolvedThreshold {
@@ -165,15 +212,26 @@ function describeCondition(t: Threshold, value: number, thr: number): string {
   return `${t.metric} ${fmt(value)} ${t.op === "below" ? "<" : ">"} ${fmt(thr)}${unit}`;
 }
 
+interface DecideContext {
+  rules: RuleSet;
+  p: PreparedColumns;
+  thresholds: Array<{ name: string; t: Threshold; value: number }>;
+  notes: string[];
+}
+
 function decide(
-  date: string,
-  sunsetMs: number | null,
-  duskMs: number | null,
-  polar: string | null,
-  c: ComputedEvening | null,
-  rules: RuleSet,
-  resolved: Record<string, ResolvedThreshold>,
+  e: {
+    date: string;
+    sunsetMs: number | null;
+    duskMs: number | null;
+    polar: string | null;
+    shortDay: boolean;
+    c: ComputedEvening | null;
+  },
+  ctx: DecideContext,
 ): EveningResult {
+  const { date, sunsetMs, duskMs, polar, c } = e;
+  const rules = ctx.rules;
   const base = {
     date,
     sunsetUtc: sunsetMs === null ? null : isoSeconds(sunsetMs),
@@ -184,31 +242,34 @@ function decide(
     return { ...base, label: "unclassified", rule: null, reasons: [why], margins: {}, metrics: EMPTY_METRICS };
   }
   const m = c.metrics;
-  const reasons: string[] = [];
-  for (const r of Object.values(resolved)) if (r.note) reasons.push(r.note);
+  const reasons = ctx.notes;
 
   const lacking: string[] = [];
   for (const win of ["afternoon", "transition", "evening"] as const) {
     const need = rules.minCoverage[win];
-    const detail = c.coverageDetail[win];
-    if (detail.core < need) {
-      const vars = Object.entries(detail.byVariable)
+    const have = m.coverage[win];
+    if (have < need) {
+      const vars = Object.entries(variableCoverage(ctx.p, c.rows[win]))
         .filter(([, v]) => v < need)
         .map(([k, v]) => `${k} ${fmt(v)}`);
       lacking.push(
-        `coverage of ${win} window ${fmt(detail.core)} < ${fmt(need)}${vars.length ? ` (${vars.join(", ")})` : ""}`,
+        `coverage of ${win} window ${fmt(have)} < ${fmt(need)}${vars.length ? ` (${vars.join(", ")})` : ""}`,
       );
     }
   }
 
   const margins: Record<string, number> = {};
-  for (const [name, t] of Object.entries(rules.thresholds)) {
+  const thrOf: Record<string, number> = {};
+  for (const { name, t, value: thr } of ctx.thresholds) {
+    thrOf[name] = thr;
     const v = metricValue(m, t.metric);
-    const thr = resolved[name]?.value;
-    if (v === null || !Number.isFinite(v) || thr === undefined) continue;
+    if (v === null || !Number.isFinite(v) || !Number.isFinite(thr)) continue;
     margins[name] = t.op === "below" ? thr - v : v - thr;
   }
 
+  if (e.shortDay) {
+    lacking.push("short day: the afternoon window starts before sunrise, so there is no daytime reference");
+  }
   if (lacking.length > 0) {
     return { ...base, label: "unclassified", rule: null, reasons: [...lacking, ...reasons], margins, metrics: m };
   }
@@ -229,7 +290,7 @@ function decide(
         ok = false;
         break;
       }
-      because.push(describeCondition(t, metricValue(m, t.metric) as number, resolved[name]?.value as number));
+      because.push(describeCondition(t, metricValue(m, t.metric) as number, thrOf[name] as number));
     }
     if (!ok) continue;
     for (const name of rule.optional) {
@@ -243,7 +304,7 @@ function decide(
         ok = false;
         break;
       }
-      because.push(describeCondition(t, metricValue(m, t.metric) as number, resolved[name]?.value as number));
+      because.push(describeCondition(t, metricValue(m, t.metric) as number, thrOf[name] as number));
     }
     if (!ok) continue;
     return {

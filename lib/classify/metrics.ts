@@ -223,15 +223,24 @@ function anyFlag(flags: Uint8Array, from: number, to: number, value?: number): b
   return false;
 }
 
-/** Per-variable coverage of one window, for explaining unclassified evenings. */
-export interface WindowCoverage {
-  core: number;
-  byVariable: Record<string, number>;
-}
+/** Row range [from, to) of a window and the number of periods it should hold. */
+export type WindowRows = [from: number, to: number, expected: number];
 
 export interface ComputedEvening {
   metrics: EveningMetrics;
-  coverageDetail: { afternoon: WindowCoverage; transition: WindowCoverage; evening: WindowCoverage };
+  rows: { afternoon: WindowRows; transition: WindowRows; evening: WindowRows };
+}
+
+/** Coverage 0..1 of each input variable in a window, for explaining unclassified evenings. */
+export function variableCoverage(p: PreparedColumns, [from, to, expected]: WindowRows): Record<string, number> {
+  const out: Record<string, number> = {};
+  const vars: Array<[string, Float64Array | null]> = [
+    ["W_SIGMA", p.sigmaW],
+    ["USTAR", p.ustar],
+    ["WS", p.ws],
+  ];
+  for (const [name, arr] of vars) out[name] = expected > 0 ? Math.min(1, countValid(arr, from, to) / expected) : 0;
+  return out;
 }
 
 /**
@@ -254,19 +263,9 @@ export function eveningMetrics(p: PreparedColumns, sunsetMs: number, rules: Rule
   const expT = (tE - tS) / p.periodMs;
   const expE = (eE - eS) / p.periodMs;
 
-  const detail = (from: number, to: number, expected: number): WindowCoverage => {
-    const byVariable: Record<string, number> = {};
-    const vars: Array<[string, Float64Array | null]> = [
-      ["W_SIGMA", p.sigmaW],
-      ["USTAR", p.ustar],
-      ["WS", p.ws],
-    ];
-    for (const [name, arr] of vars) byVariable[name] = expected > 0 ? Math.min(1, countValid(arr, from, to) / expected) : 0;
-    return { core: coreCoverage(p, from, to, expected), byVariable };
-  };
-  const covA = detail(a0, a1, expA);
-  const covT = detail(t0, t1, expT);
-  const covE = detail(e0, e1, expE);
+  const covA = coreCoverage(p, a0, a1, expA);
+  const covT = coreCoverage(p, t0, t1, expT);
+  const covE = coreCoverage(p, e0, e1, expE);
 
   const sigmaWAfternoon = meanOf(p.sigmaW, a0, a1);
   const sigmaWTransition = meanOf(p.sigmaW, t0, t1);
@@ -337,10 +336,10 @@ export function eveningMetrics(p: PreparedColumns, sunsetMs: number, rules: Rule
       hZeroCrossingMinutes,
       coolingRateKPerH,
       dewPointChangeK,
-      coverage: { afternoon: covA.core, transition: covT.core, evening: covE.core },
+      coverage: { afternoon: covA, transition: covT, evening: covE },
       derived,
     },
-    coverageDetail: { afternoon: covA, transition: covT, evening: covE },
+    rows: { afternoon: [a0, a1, expA], transition: [t0, t1, expT], evening: [e0, e1, expE] },
   };
 }
 

@@ -81,6 +81,8 @@ export const ruleSetSchema = z
     }),
     /** wind speed below which direction is undefined, m s-1 */
     calmSpeedMs: z.number().min(0),
+    /** leave evenings unclassified when the afternoon window starts before sunrise (short polar-fringe days) */
+    requireDaylightAfternoon: z.boolean().default(true),
     thresholds: z.record(z.string().regex(/^[A-Za-z][A-Za-z0-9]*$/), thresholdSchema),
     rules: z.array(ruleSchema).min(1),
   })

@@ -21,6 +21,8 @@ export interface EveningSun {
   civilDuskMs: number | null;
   /** UTC epoch ms of the solar noon the evening follows. */
   solarNoonMs: number;
+  /** UTC epoch ms of the sunrise before that solar noon; null in polar day/night. */
+  sunriseMs: number | null;
 }
 
 const DAY_MS = 86_400_000;
@@ -67,6 +69,7 @@ export function eveningSun(
       sunsetMs: null,
       civilDuskMs: null,
       solarNoonMs,
+      sunriseMs: null,
     };
   }
   return {
@@ -75,5 +78,6 @@ export function eveningSun(
     sunsetMs: t.sunset.getTime(),
     civilDuskMs: t.dusk === null ? null : t.dusk.getTime(),
     solarNoonMs,
+    sunriseMs: t.sunrise === null ? null : t.sunrise.getTime(),
   };
 }
