@@ -25,6 +25,8 @@ const schema = z.object({
   APP_URL: z.url().default("http://localhost:3000"),
   DATA_DIR: z.string().min(1).default(".data"),
   DEMO_MODE: booleanFlag.optional(),
+  // Largest accepted upload, bytes (default 1 GB).
+  IMPORT_MAX_BYTES: z.coerce.number().int().min(1).default(1_000_000_000),
 });
 
 const parsed = schema.safeParse(process.env);
@@ -58,6 +60,8 @@ export const env = {
   DATA_DIR: dataDir,
   DEMO_MODE: raw.DEMO_MODE ?? raw.NODE_ENV !== "production",
   SESSION_SECURE: raw.APP_URL.startsWith("https://"),
+  /** Largest accepted upload, bytes. */
+  IMPORT_MAX_BYTES: raw.IMPORT_MAX_BYTES,
 } as const;
 
 export type Env = typeof env;
