@@ -71,7 +71,7 @@ const ALIASES: Record<KnownVariable | TimestampRole, string[]> = {
   SW_IN: ["rg", "sw_in", "swin", "sw_down", "swdown", "sw_incoming", "shortwave_in", "global_radiation", "rs_in", "rsd", "solar_radiation", "sw_inc"],
   TIMESTAMP_START: ["ts_start", "start", "start_time", "time_start", "datetime_start", "date_time_start", "period_start"],
   TIMESTAMP_END: ["ts_end", "end", "end_time", "time_end", "datetime_end", "date_time_end", "period_end"],
-  TIMESTAMP: ["timestamp", "datetime", "date_time", "date_and_time", "ts", "time_stamp", "date/time", "timestamp_local"],
+  TIMESTAMP: ["timestamp", "datetime", "date_time", "date_and_time", "time_stamp", "date/time", "timestamp_local"],
   DATE: ["date", "day", "date_local"],
   TIME: ["time", "clock_time", "time_local", "hh:mm", "hhmm"],
 };
@@ -134,9 +134,11 @@ export function recognizeName(header: string): Omit<ColumnGuess, "index" | "unit
     const whole = EXACT.get(norm) ?? ALIAS.get(norm);
     if (whole) return { v: whole, conf: EXACT.has(norm) ? 1 : 0.8, parts: { base: norm, gapFilled: false } };
     const parts = splitSuffixes(norm);
-    const e = EXACT.get(parts.base);
+    // Timestamps carry no position or gap-filling suffix: "TS_1_1_1" is soil temperature.
+    const suffixed = (v: KnownVariable | TimestampRole | undefined) => (v && isTimestampRole(v) ? undefined : v);
+    const e = suffixed(EXACT.get(parts.base));
     if (e) return { v: e, conf: 1, parts };
-    const a = ALIAS.get(parts.base);
+    const a = suffixed(ALIAS.get(parts.base));
     if (a) return { v: a, conf: 0.8, parts };
     return null;
   };
