@@ -3,7 +3,7 @@ import Link from "next/link";
 export default function NotFound() {
   return (
     <main id="main" className="grid min-h-dvh place-items-center px-4">
-      <div className="card max-w-md space-y-3 p-6 text-center">
+      <div className="max-w-md space-y-3 card p-6 text-center">
         <h1 className="text-lg font-semibold">Page not found</h1>
         <p className="text-sm text-ink-muted">This address does not lead anywhere in Gloaming.</p>
         <Link href="/" className="btn-quiet">

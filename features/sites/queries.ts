@@ -21,8 +21,7 @@ async function getJson<T>(url: string): Promise<T> {
 export function sitesListOptions(groupId: number) {
   return queryOptions({
     queryKey: sitesKeys.list(groupId),
-    queryFn: async () =>
-      (await getJson<{ sites: SiteSummary[] }>(`/api/sites?groupId=${groupId}`)).sites,
+    queryFn: async () => (await getJson<{ sites: SiteSummary[] }>(`/api/sites?groupId=${groupId}`)).sites,
   });
 }
 

@@ -48,9 +48,7 @@ export const siteFields = z.object({
     number("measurement height", { min: 0, minExclusive: true, max: 500, unit: "m" }),
   ),
   canopyHeightM: coerced(number("canopy height", { min: 0, max: 150, unit: "m" })),
-  displacementHeightM: coerced(
-    number("displacement height", { min: 0, max: 150, unit: "m" }).optional(),
-  ),
+  displacementHeightM: coerced(number("displacement height", { min: 0, max: 150, unit: "m" }).optional()),
   utcOffsetHours: coerced(
     number("UTC offset", { min: -12, max: 14, unit: "h" }).refine((v) => Number.isInteger(v * 4), {
       message: "The UTC offset must be a whole number of quarter hours (e.g. 5.5 or 5.75).",

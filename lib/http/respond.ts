@@ -38,7 +38,7 @@ export function handleRouteError(err: unknown): Response {
   if (err instanceof ZodError) {
     const { fieldErrors, formErrors } = flattenError(err);
     const message = formErrors[0] ?? "Some values need attention.";
-    return errorResponse(422, "invalid", message, fieldErrors as Record<string, string[]>);
+    return errorResponse(422, "invalid", message, fieldErrors);
   }
   if (err instanceof BadJsonError) {
     return errorResponse(400, "bad_json", err.message);

@@ -97,7 +97,10 @@ export function FormMessage({ tone, children }: { tone: "error" | "info"; childr
       ? "border-red-300 bg-red-50 text-red-800 dark:border-red-800 dark:bg-red-950/50 dark:text-red-200"
       : "border-dusk-200 bg-dusk-50 text-dusk-800 dark:border-dusk-700 dark:bg-dusk-900/60 dark:text-dusk-100";
   return (
-    <div role={tone === "error" ? "alert" : "status"} className={`rounded-lg border px-3 py-2 text-sm ${look}`}>
+    <div
+      role={tone === "error" ? "alert" : "status"}
+      className={`rounded-lg border px-3 py-2 text-sm ${look}`}
+    >
       {children}
     </div>
   );

@@ -3,11 +3,16 @@
 export default function SitesError({ error, retry }: { error: unknown; retry: () => void }) {
   const digest = error instanceof Error && "digest" in error ? String(error.digest) : null;
   return (
-    <div role="alert" className="card max-w-xl space-y-3 p-6">
+    <div role="alert" className="max-w-xl space-y-3 card p-6">
       <h1 className="text-lg font-semibold">This page could not be shown</h1>
       <p className="text-sm text-ink-muted">
         Something went wrong on our side. Nothing you entered was changed.
-        {digest ? <> Reference: <code className="font-mono">{digest}</code>.</> : null}
+        {digest ? (
+          <>
+            {" "}
+            Reference: <code className="font-mono">{digest}</code>.
+          </>
+        ) : null}
       </p>
       <button type="button" className="btn-quiet" onClick={() => retry()}>
         Try again

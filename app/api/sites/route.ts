@@ -7,8 +7,7 @@ import { createSite } from "@/features/sites/server/mutations";
 /** The group named by ?groupId=, else the body's groupId, else the active group. */
 async function resolveGroupId(request: Request, body?: unknown): Promise<number> {
   const fromQuery = new URL(request.url).searchParams.get("groupId");
-  const fromBody =
-    typeof body === "object" && body !== null && "groupId" in body ? (body as { groupId: unknown }).groupId : undefined;
+  const fromBody = typeof body === "object" && body !== null && "groupId" in body ? body.groupId : undefined;
   const given = fromQuery ?? fromBody;
   if (given !== undefined && given !== null) return groupIdSchema.parse(given);
   await requireSession();
@@ -39,7 +38,7 @@ export async function POST(request: Request): Promise<Response> {
     await requireRole(groupId, "lead");
     const input = siteInputSchema.parse(body);
     const result = await createSite(groupId, input);
-    if (!result.ok) return errorResponse(409, "conflict", result.message, result.fieldErrors as Record<string, string[]>);
+    if (!result.ok) return errorResponse(409, "conflict", result.message, result.fieldErrors);
     return json({ site: result.site }, { status: 201 });
   } catch (err) {
     return handleRouteError(err);

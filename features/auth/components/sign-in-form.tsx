@@ -54,14 +54,20 @@ export function SignInForm({ demo }: { demo: { accounts: DemoAccount[]; password
         </button>
         <p className="text-center text-sm text-ink-muted">
           New here?{" "}
-          <Link href="/sign-up" className="font-medium text-dusk-700 underline-offset-2 hover:underline dark:text-dusk-200">
+          <Link
+            href="/sign-up"
+            className="font-medium text-dusk-700 underline-offset-2 hover:underline dark:text-dusk-200"
+          >
             Create an account and a group
           </Link>
         </p>
       </form>
 
       {demo ? (
-        <section aria-labelledby="demo-title" className="rounded-xl border border-dashed border-dusk-300 p-4 dark:border-dusk-600">
+        <section
+          aria-labelledby="demo-title"
+          className="rounded-xl border border-dashed border-dusk-300 p-4 dark:border-dusk-600"
+        >
           <h2 id="demo-title" className="text-sm font-semibold">
             Demo scenario accounts
           </h2>

@@ -16,7 +16,8 @@ export function SignUpForm() {
   const bind = (name: keyof typeof EMPTY) => ({
     name,
     value: values[name],
-    onChange: (e: React.ChangeEvent<HTMLInputElement>) => setValues((v) => ({ ...v, [name]: e.target.value })),
+    onChange: (e: React.ChangeEvent<HTMLInputElement>) =>
+      setValues((v) => ({ ...v, [name]: e.target.value })),
     errors: state.fieldErrors?.[name],
   });
 
@@ -44,7 +45,10 @@ export function SignUpForm() {
       </button>
       <p className="text-center text-sm text-ink-muted">
         Already have an account?{" "}
-        <Link href="/sign-in" className="font-medium text-dusk-700 underline-offset-2 hover:underline dark:text-dusk-200">
+        <Link
+          href="/sign-in"
+          className="font-medium text-dusk-700 underline-offset-2 hover:underline dark:text-dusk-200"
+        >
           Sign in
         </Link>
       </p>

@@ -3,7 +3,10 @@ import Link from "next/link";
 /** Wordmark: a sun half below a horizon line, in the dusk ramp. */
 export function Brand({ href = "/" }: { href?: string }) {
   return (
-    <Link href={href} className="inline-flex items-center gap-2.5 rounded-md font-semibold tracking-tight text-ink">
+    <Link
+      href={href}
+      className="inline-flex items-center gap-2.5 rounded-md font-semibold tracking-tight text-ink"
+    >
       <svg viewBox="0 0 32 32" className="size-7" aria-hidden="true">
         <defs>
           <linearGradient id="gloaming-sky" x1="0" y1="0" x2="0" y2="1">

@@ -30,7 +30,10 @@ export function GroupSwitcher({ memberships, active }: { memberships: Membership
         className="flex w-full items-center justify-between gap-2 rounded-lg border border-line px-3 py-2 hover:bg-surface-sunken"
       >
         {summary}
-        <span aria-hidden="true" className={`text-ink-muted transition-transform ${open ? "rotate-180" : ""}`}>
+        <span
+          aria-hidden="true"
+          className={`text-ink-muted transition-transform ${open ? "rotate-180" : ""}`}
+        >
           ▾
         </span>
       </button>

@@ -8,7 +8,9 @@ import { NAV_ITEMS } from "@/features/shell/nav";
 /** The main navigation; the current section is marked with aria-current and a bar. */
 export function NavLinks({ role }: { role: Role | null }) {
   const pathname = usePathname();
-  const items = NAV_ITEMS.filter((i) => !i.minimumRole || (role !== null && roleAtLeast(role, i.minimumRole)));
+  const items = NAV_ITEMS.filter(
+    (i) => !i.minimumRole || (role !== null && roleAtLeast(role, i.minimumRole)),
+  );
   return (
     <ul className="space-y-1">
       {items.map((item) => {

@@ -5,7 +5,9 @@ import { useDisclosure } from "@/features/shell/components/use-disclosure";
 
 function initials(name: string): string {
   const parts = name.trim().split(/\s+/).filter(Boolean);
-  return (parts.length > 1 ? `${parts[0]?.[0] ?? ""}${parts.at(-1)?.[0] ?? ""}` : name.slice(0, 2)).toUpperCase();
+  return (
+    parts.length > 1 ? `${parts[0]?.[0] ?? ""}${parts.at(-1)?.[0] ?? ""}` : name.slice(0, 2)
+  ).toUpperCase();
 }
 
 /** The signed-in person and sign out; `signOutAction` comes from the app layer. */
@@ -49,7 +51,10 @@ export function UserMenu({
           <p className="truncate text-xs text-ink-muted">{user.email}</p>
         </div>
         <form action={signOutAction}>
-          <button type="submit" className="w-full rounded-md px-3 py-2 text-left text-sm hover:bg-surface-sunken">
+          <button
+            type="submit"
+            className="w-full rounded-md px-3 py-2 text-left text-sm hover:bg-surface-sunken"
+          >
             Sign out
           </button>
         </form>

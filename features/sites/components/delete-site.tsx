@@ -33,7 +33,11 @@ export function DeleteSite({ siteId, siteName, action }: Props) {
 
   return (
     <>
-      <button type="button" className="btn-quiet text-red-700 dark:text-red-300" onClick={() => dialog.current?.showModal()}>
+      <button
+        type="button"
+        className="btn-quiet text-red-700 dark:text-red-300"
+        onClick={() => dialog.current?.showModal()}
+      >
         Delete site
       </button>
       <dialog

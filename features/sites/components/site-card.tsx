@@ -9,7 +9,7 @@ function coord(value: number, pos: string, neg: string): string {
 /** One site on the list: where it is, how its tower is set up, what data it has. */
 export function SiteCard({ site }: { site: SiteSummary }) {
   return (
-    <article className="card group relative flex flex-col gap-4 p-5 transition-shadow hover:shadow-md">
+    <article className="group relative flex flex-col gap-4 card p-5 transition-shadow hover:shadow-md">
       <header className="space-y-1">
         <h2 className="text-base font-semibold text-ink">
           <Link href={`/sites/${site.id}`} className="after:absolute after:inset-0 after:rounded-xl">

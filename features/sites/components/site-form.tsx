@@ -34,7 +34,14 @@ export function SiteForm({ action, groupId, site, submitLabel, cancelHref }: Pro
 
       <fieldset className="space-y-4">
         <legend className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase">Site</legend>
-        <Field name="name" label="Name" required maxLength={120} defaultValue={val("name")} errors={err("name")} />
+        <Field
+          name="name"
+          label="Name"
+          required
+          maxLength={120}
+          defaultValue={val("name")}
+          errors={err("name")}
+        />
         <div className="grid gap-4 sm:grid-cols-3">
           <Field
             name="latitude"
@@ -100,7 +107,9 @@ export function SiteForm({ action, groupId, site, submitLabel, cancelHref }: Pro
       </fieldset>
 
       <fieldset className="space-y-4">
-        <legend className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase">Data clock</legend>
+        <legend className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+          Data clock
+        </legend>
         <div className="sm:w-1/3">
           <Field
             name="utcOffsetHours"
@@ -112,7 +121,13 @@ export function SiteForm({ action, groupId, site, submitLabel, cancelHref }: Pro
             errors={err("utcOffsetHours")}
           />
         </div>
-        <TextArea name="notes" label="Notes (optional)" maxLength={4000} defaultValue={val("notes")} errors={err("notes")} />
+        <TextArea
+          name="notes"
+          label="Notes (optional)"
+          maxLength={4000}
+          defaultValue={val("notes")}
+          errors={err("notes")}
+        />
       </fieldset>
 
       <div className="flex items-center gap-3 border-t border-line pt-6">

@@ -22,11 +22,11 @@ export function SiteList({ groupId, canManage }: { groupId: number; canManage: b
   }
   if (sites.length === 0) {
     return (
-      <div className="card flex flex-col items-start gap-3 p-8">
+      <div className="flex flex-col items-start gap-3 card p-8">
         <h2 className="text-base font-semibold">No sites yet</h2>
         <p className="max-w-prose text-sm text-ink-muted">
-          A site holds a tower&apos;s coordinates, heights and data clock. Evenings are labelled per site once its
-          data is imported.
+          A site holds a tower&apos;s coordinates, heights and data clock. Evenings are labelled per site once
+          its data is imported.
         </p>
         {canManage ? (
           <Link href="/sites/new" className="btn-primary">

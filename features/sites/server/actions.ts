@@ -12,7 +12,12 @@ import {
   type SiteField,
   type SiteFormState,
 } from "@/features/sites/schemas";
-import { createSite, deleteSite, updateSite, type SiteMutationResult } from "@/features/sites/server/mutations";
+import {
+  createSite,
+  deleteSite,
+  updateSite,
+  type SiteMutationResult,
+} from "@/features/sites/server/mutations";
 
 const FIELDS = Object.keys(siteFields.shape) as SiteField[];
 
@@ -28,7 +33,8 @@ function typedValues(formData: FormData): Partial<Record<SiteField, string>> {
 function authProblem(err: unknown): SiteFormState {
   if (err instanceof AuthError) {
     if (err.code === "unauthenticated") redirect("/sign-in");
-    if (err.code === "forbidden") return { ok: false, message: "Only a lead of this group can change its sites." };
+    if (err.code === "forbidden")
+      return { ok: false, message: "Only a lead of this group can change its sites." };
     return { ok: false, message: "This site does not exist or is not in one of your groups." };
   }
   throw err;

@@ -64,7 +64,13 @@ export async function createSite(groupId: number, input: SiteInput): Promise<Sit
       const [id] = await trx("sites").insert({ group_id: groupId, ...toColumns(input) });
       const row = await trx<SiteRow>("sites").where({ id }).first();
       if (!row) throw new Error(`site ${String(id)} vanished after insert`);
-      await audit(trx, { groupId, userId: user.id, action: "site.create", siteId: row.id, detail: { ...input } });
+      await audit(trx, {
+        groupId,
+        userId: user.id,
+        action: "site.create",
+        siteId: row.id,
+        detail: { ...input },
+      });
       return toSite(row);
     });
     return { ok: true, site };

@@ -25,7 +25,10 @@ function validBody(overrides: Record<string, unknown> = {}) {
 }
 
 const req = (path: string, init?: RequestInit) =>
-  new Request(`${BASE}${path}`, { ...init, headers: { "content-type": "application/json", ...init?.headers } });
+  new Request(`${BASE}${path}`, {
+    ...init,
+    headers: { "content-type": "application/json", ...init?.headers },
+  });
 const ctx = (siteId: number | string) => ({ params: Promise.resolve({ siteId: String(siteId) }) });
 
 async function member(role: Role) {
@@ -33,7 +36,9 @@ async function member(role: Role) {
   return { user, group, client: await clientFor(user, { groupId: group.id }) };
 }
 
-async function body(res: Response): Promise<Record<string, unknown> & { error?: { code: string; fieldErrors?: Record<string, string[]> } }> {
+async function body(
+  res: Response,
+): Promise<Record<string, unknown> & { error?: { code: string; fieldErrors?: Record<string, string[]> } }> {
   return (await res.json()) as never;
 }
 
@@ -51,7 +56,10 @@ describe("GET /api/sites", () => {
     await createSiteFor(other.group.id);
     const res = await client.call(() => listGET(req("/api/sites")));
     expect(res.status).toBe(200);
-    const data = (await res.json()) as { groupId: number; sites: Array<{ id: number; coverage: unknown; labelCounts: unknown }> };
+    const data = (await res.json()) as {
+      groupId: number;
+      sites: Array<{ id: number; coverage: unknown; labelCounts: unknown }>;
+    };
     expect(data.groupId).toBe(group.id);
     expect(data.sites.map((s) => s.id)).toEqual([mine.id]);
     expect(data.sites[0]).toMatchObject({ coverage: null, labelCounts: null });
@@ -75,13 +83,17 @@ describe("GET /api/sites", () => {
 
 describe("POST /api/sites", () => {
   test("anonymous: 401", async () => {
-    const res = await new FakeClient().call(() => POST(req("/api/sites", { method: "POST", body: JSON.stringify(validBody()) })));
+    const res = await new FakeClient().call(() =>
+      POST(req("/api/sites", { method: "POST", body: JSON.stringify(validBody()) })),
+    );
     expect(res.status).toBe(401);
   });
 
   test.each(["viewer", "analyst"] as const)("%s: 403 and no row", async (role) => {
     const { group, client } = await member(role);
-    const res = await client.call(() => POST(req("/api/sites", { method: "POST", body: JSON.stringify(validBody()) })));
+    const res = await client.call(() =>
+      POST(req("/api/sites", { method: "POST", body: JSON.stringify(validBody()) })),
+    );
     expect(res.status).toBe(403);
     expect(await db("sites").where({ group_id: group.id }).count({ n: "*" }).first()).toMatchObject({ n: 0 });
   });
@@ -90,7 +102,12 @@ describe("POST /api/sites", () => {
     const { client } = await member("lead");
     const other = await createUserWithGroup();
     const res = await client.call(() =>
-      POST(req("/api/sites", { method: "POST", body: JSON.stringify({ ...validBody(), groupId: other.group.id }) })),
+      POST(
+        req("/api/sites", {
+          method: "POST",
+          body: JSON.stringify({ ...validBody(), groupId: other.group.id }),
+        }),
+      ),
     );
     expect(res.status).toBe(404);
   });
@@ -98,9 +115,13 @@ describe("POST /api/sites", () => {
   test("lead: 201, the row, and an audit entry", async () => {
     const { user, group, client } = await member("lead");
     const input = validBody();
-    const res = await client.call(() => POST(req("/api/sites", { method: "POST", body: JSON.stringify(input) })));
+    const res = await client.call(() =>
+      POST(req("/api/sites", { method: "POST", body: JSON.stringify(input) })),
+    );
     expect(res.status).toBe(201);
-    const { site } = (await res.json()) as { site: { id: number; name: string; groupId: number; utcOffsetHours: number } };
+    const { site } = (await res.json()) as {
+      site: { id: number; name: string; groupId: number; utcOffsetHours: number };
+    };
     expect(site).toMatchObject({ name: input.name, groupId: group.id, utcOffsetHours: 1 });
     const audit = await db("audit_log").where({ entity_type: "site", entity_id: String(site.id) });
     expect(audit).toHaveLength(1);
@@ -114,7 +135,14 @@ describe("POST /api/sites", () => {
         req("/api/sites", {
           method: "POST",
           body: JSON.stringify(
-            validBody({ latitude: 91, longitude: -181, measurementHeightM: 0, canopyHeightM: -1, utcOffsetHours: 5.3, name: "" }),
+            validBody({
+              latitude: 91,
+              longitude: -181,
+              measurementHeightM: 0,
+              canopyHeightM: -1,
+              utcOffsetHours: 5.3,
+              name: "",
+            }),
           ),
         }),
       ),
@@ -135,12 +163,21 @@ describe("POST /api/sites", () => {
   test("canopy and displacement at or above the measurement height: 422 on those fields", async () => {
     const { client } = await member("lead");
     const res = await client.call(() =>
-      POST(req("/api/sites", { method: "POST", body: JSON.stringify(validBody({ canopyHeightM: 32, displacementHeightM: 40 })) })),
+      POST(
+        req("/api/sites", {
+          method: "POST",
+          body: JSON.stringify(validBody({ canopyHeightM: 32, displacementHeightM: 40 })),
+        }),
+      ),
     );
     expect(res.status).toBe(422);
     const { error } = await body(res);
-    expect(error?.fieldErrors?.canopyHeightM).toEqual(["The canopy height must be below the measurement height."]);
-    expect(error?.fieldErrors?.displacementHeightM).toEqual(["The displacement height must be below the measurement height."]);
+    expect(error?.fieldErrors?.canopyHeightM).toEqual([
+      "The canopy height must be below the measurement height.",
+    ]);
+    expect(error?.fieldErrors?.displacementHeightM).toEqual([
+      "The displacement height must be below the measurement height.",
+    ]);
   });
 
   test("a name already used in the group: 409 on the name field", async () => {
@@ -166,8 +203,17 @@ describe("GET/PATCH/DELETE /api/sites/:siteId", () => {
     const site = await createSiteFor(group.id);
     const anon = new FakeClient();
     expect((await anon.call(() => oneGET(req(`/api/sites/${site.id}`), ctx(site.id)))).status).toBe(401);
-    expect((await anon.call(() => PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: "{}" }), ctx(site.id)))).status).toBe(401);
-    expect((await anon.call(() => DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)))).status).toBe(401);
+    expect(
+      (
+        await anon.call(() =>
+          PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: "{}" }), ctx(site.id)),
+        )
+      ).status,
+    ).toBe(401);
+    expect(
+      (await anon.call(() => DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id))))
+        .status,
+    ).toBe(401);
   });
 
   test("a site of another group: 404 on every method, unchanged, and never its data", async () => {
@@ -178,10 +224,15 @@ describe("GET/PATCH/DELETE /api/sites/:siteId", () => {
     expect(get.status).toBe(404);
     expect(JSON.stringify(await get.json())).not.toContain(site.name);
     const patch = await client.call(() =>
-      PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ name: "Taken over" }) }), ctx(site.id)),
+      PATCH(
+        req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ name: "Taken over" }) }),
+        ctx(site.id),
+      ),
     );
     expect(patch.status).toBe(404);
-    const del = await client.call(() => DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)));
+    const del = await client.call(() =>
+      DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)),
+    );
     expect(del.status).toBe(404);
     expect(await db("sites").where({ id: site.id }).first()).toMatchObject({ name: site.name });
   });
@@ -200,47 +251,80 @@ describe("GET/PATCH/DELETE /api/sites/:siteId", () => {
     expect(await res.json()).toMatchObject({ site: { id: site.id, name: site.name }, role: "viewer" });
   });
 
-  test.each(["viewer", "analyst"] as const)("%s: PATCH and DELETE are 403, the site is unchanged", async (role) => {
-    const { group, client } = await member(role);
-    const site = await createSiteFor(group.id);
-    const patch = await client.call(() =>
-      PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ canopyHeightM: 5 }) }), ctx(site.id)),
-    );
-    expect(patch.status).toBe(403);
-    const del = await client.call(() => DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)));
-    expect(del.status).toBe(403);
-    expect(await db("sites").where({ id: site.id }).first()).toMatchObject({ canopy_height_m: 20 });
-  });
+  test.each(["viewer", "analyst"] as const)(
+    "%s: PATCH and DELETE are 403, the site is unchanged",
+    async (role) => {
+      const { group, client } = await member(role);
+      const site = await createSiteFor(group.id);
+      const patch = await client.call(() =>
+        PATCH(
+          req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ canopyHeightM: 5 }) }),
+          ctx(site.id),
+        ),
+      );
+      expect(patch.status).toBe(403);
+      const del = await client.call(() =>
+        DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)),
+      );
+      expect(del.status).toBe(403);
+      expect(await db("sites").where({ id: site.id }).first()).toMatchObject({ canopy_height_m: 20 });
+    },
+  );
 
   test("lead: PATCH merges, validates the whole, and audits the change", async () => {
     const { user, group, client } = await member("lead");
     const site = await createSiteFor(group.id);
     const bad = await client.call(() =>
-      PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ canopyHeightM: 35 }) }), ctx(site.id)),
+      PATCH(
+        req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ canopyHeightM: 35 }) }),
+        ctx(site.id),
+      ),
     );
     expect(bad.status).toBe(422);
-    expect((await body(bad)).error?.fieldErrors?.canopyHeightM).toEqual(["The canopy height must be below the measurement height."]);
+    expect((await body(bad)).error?.fieldErrors?.canopyHeightM).toEqual([
+      "The canopy height must be below the measurement height.",
+    ]);
 
     const res = await client.call(() =>
-      PATCH(req(`/api/sites/${site.id}`, { method: "PATCH", body: JSON.stringify({ canopyHeightM: 22.5, utcOffsetHours: 5.75 }) }), ctx(site.id)),
+      PATCH(
+        req(`/api/sites/${site.id}`, {
+          method: "PATCH",
+          body: JSON.stringify({ canopyHeightM: 22.5, utcOffsetHours: 5.75 }),
+        }),
+        ctx(site.id),
+      ),
     );
     expect(res.status).toBe(200);
-    expect(await res.json()).toMatchObject({ site: { canopyHeightM: 22.5, utcOffsetHours: 5.75, name: site.name } });
-    const audit = await db("audit_log").where({ entity_type: "site", entity_id: String(site.id), action: "site.update" }).first();
+    expect(await res.json()).toMatchObject({
+      site: { canopyHeightM: 22.5, utcOffsetHours: 5.75, name: site.name },
+    });
+    const audit = (await db("audit_log")
+      .where({ entity_type: "site", entity_id: String(site.id), action: "site.update" })
+      .first()) as { user_id: string; group_id: number; detail: unknown } | undefined;
     expect(audit).toMatchObject({ user_id: user.id, group_id: group.id });
-    const detail = (typeof audit.detail === "string" ? JSON.parse(audit.detail) : audit.detail) as {
+    const raw = audit?.detail;
+    const detail = (typeof raw === "string" ? JSON.parse(raw) : raw) as {
       changes: Record<string, { from: unknown; to: unknown }>;
     };
-    expect(detail.changes).toEqual({ canopyHeightM: { from: 20, to: 22.5 }, utcOffsetHours: { from: 1, to: 5.75 } });
+    expect(detail.changes).toEqual({
+      canopyHeightM: { from: 20, to: 22.5 },
+      utcOffsetHours: { from: 1, to: 5.75 },
+    });
   });
 
   test("lead: DELETE removes the site and audits it", async () => {
     const { user, group, client } = await member("lead");
     const site = await createSiteFor(group.id);
-    const res = await client.call(() => DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)));
+    const res = await client.call(() =>
+      DELETE(req(`/api/sites/${site.id}`, { method: "DELETE" }), ctx(site.id)),
+    );
     expect(res.status).toBe(204);
     expect(await db("sites").where({ id: site.id }).first()).toBeUndefined();
-    expect(await db("audit_log").where({ entity_id: String(site.id), action: "site.delete" }).first()).toMatchObject({
+    expect(
+      await db("audit_log")
+        .where({ entity_id: String(site.id), action: "site.delete" })
+        .first(),
+    ).toMatchObject({
       user_id: user.id,
       group_id: group.id,
     });

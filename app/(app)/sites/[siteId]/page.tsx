@@ -53,7 +53,10 @@ export default async function SitePage({ params }: Props) {
           </section>
           {site.notes ? (
             <section aria-labelledby="notes-title" className="card p-5">
-              <h2 id="notes-title" className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+              <h2
+                id="notes-title"
+                className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase"
+              >
                 Notes
               </h2>
               <p className="text-sm whitespace-pre-line">{site.notes}</p>

@@ -22,9 +22,14 @@ export default async function NewSitePage() {
         title="New site"
         description={active ? `A tower of ${active.groupName}.` : undefined}
       />
-      <div className="card max-w-3xl p-6">
+      <div className="max-w-3xl card p-6">
         {active && roleAtLeast(active.role, "lead") ? (
-          <SiteForm action={createSiteAction} groupId={active.groupId} submitLabel="Create site" cancelHref="/sites" />
+          <SiteForm
+            action={createSiteAction}
+            groupId={active.groupId}
+            submitLabel="Create site"
+            cancelHref="/sites"
+          />
         ) : (
           <FormMessage tone="info">Only a lead of the group can add sites.</FormMessage>
         )}

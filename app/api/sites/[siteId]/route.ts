@@ -33,7 +33,7 @@ export async function PATCH(request: Request, ctx: Context): Promise<Response> {
     const patch = typeof body === "object" && body !== null && !Array.isArray(body) ? body : {};
     const input = siteInputSchema.parse({ ...site, ...patch });
     const result = await updateSite(siteId, input);
-    if (!result.ok) return errorResponse(409, "conflict", result.message, result.fieldErrors as Record<string, string[]>);
+    if (!result.ok) return errorResponse(409, "conflict", result.message, result.fieldErrors);
     return json({ site: result.site });
   } catch (err) {
     return handleRouteError(err);

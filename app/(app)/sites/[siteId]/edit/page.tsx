@@ -22,9 +22,14 @@ export default async function EditSitePage({ params }: { params: Promise<{ siteI
         }
         title="Edit site"
       />
-      <div className="card max-w-3xl p-6">
+      <div className="max-w-3xl card p-6">
         {roleAtLeast(role, "lead") ? (
-          <SiteForm action={updateSiteAction.bind(null, site.id)} site={site} submitLabel="Save changes" cancelHref={back} />
+          <SiteForm
+            action={updateSiteAction.bind(null, site.id)}
+            site={site}
+            submitLabel="Save changes"
+            cancelHref={back}
+          />
         ) : (
           <FormMessage tone="info">Only a lead of this group can edit its sites.</FormMessage>
         )}
