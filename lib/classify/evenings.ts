@@ -239,7 +239,14 @@ function decide(
   };
   if (polar !== null || c === null) {
     const why = polar === "polar-day" ? "polar day: the Sun does not set" : "polar night: the Sun does not rise";
-    return { ...base, label: "unclassified", rule: null, reasons: [why], margins: {}, metrics: EMPTY_METRICS };
+    return {
+      ...base,
+      label: "unclassified",
+      rule: null,
+      reasons: [why],
+      margins: {},
+      metrics: { ...EMPTY_METRICS, coverage: { ...EMPTY_METRICS.coverage }, derived: [] },
+    };
   }
   const m = c.metrics;
   const reasons = ctx.notes;
