@@ -832,8 +832,10 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     if (outOfOrder > 0) warnings.push(`${outOfOrder} rows were out of time order (lines ${outOfOrderLines.join(", ")}${outOfOrder > outOfOrderLines.length ? ", ..." : ""}); rows were sorted into time order`);
     if (duplicates > 0) warnings.push(`${duplicates} rows repeat an earlier period start; the first was kept, the repeats rejected`);
   }
+  // Without reordering, a view avoids a transient second copy when the arrays were sized well.
+  const tight = st.cap <= n * 1.1;
   const pick = (a: Float64Array): Float64Array => {
-    if (!order) return a.slice(0, n);
+    if (!order) return tight ? a.subarray(0, n) : a.slice(0, n);
     const out = new Float64Array(order.length);
     for (let j = 0; j < order.length; j++) out[j] = a[order[j] as number] as number;
     return out;
