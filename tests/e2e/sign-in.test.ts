@@ -1,0 +1,77 @@
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { DEMO_SITE } from "@/lib/demo/scenario";
+import {
+  launchBrowser,
+  screenshot,
+  startApp,
+  type BrowserSession,
+  type RunningApp,
+} from "@/tests/support/browser";
+import { seedDemo } from "@/tests/support/db";
+
+let app: RunningApp;
+let browser: BrowserSession;
+
+beforeAll(async () => {
+  await seedDemo();
+  app = await startApp();
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+// The tests share one browser profile and run in order: refused, signed in, narrow screen.
+describe("signing in as the demo analyst", () => {
+  test("a wrong password is refused with a message and the address kept", async () => {
+    const { page } = browser;
+    await page.goto(`${app.url}/sign-in`);
+    await page.getByLabel("E-mail address").fill("viewer@demo.gloaming.test");
+    await page.getByLabel("Password").fill("not-the-password");
+    await page.getByRole("button", { name: "Sign in", exact: true }).click();
+    await page.getByRole("alert").waitFor();
+    expect(await page.getByRole("alert").textContent()).toMatch(/not right/);
+    expect(await page.getByLabel("E-mail address").inputValue()).toBe("viewer@demo.gloaming.test");
+  });
+
+  test("the demo account fills in with one click and leads to the site list", async () => {
+    const { page } = browser;
+    await page.goto(`${app.url}/`);
+    await page.waitForURL(/\/sign-in$/);
+    await screenshot(page, "sign-in");
+
+    await page.getByRole("button", { name: /Fill in the demo analyst/ }).click();
+    expect(await page.getByLabel("E-mail address").inputValue()).toBe("analyst@demo.gloaming.test");
+    await page.getByRole("button", { name: "Sign in", exact: true }).click();
+
+    await page.waitForURL(/\/sites$/);
+    await page.getByRole("heading", { level: 1, name: "Sites" }).waitFor();
+    const list = page.getByRole("list", { name: "Sites" });
+    await expect(list.getByRole("link", { name: DEMO_SITE.name }).count()).resolves.toBe(1);
+    // An analyst reads sites but cannot add them.
+    expect(await page.getByRole("link", { name: /New site/ }).count()).toBe(0);
+    // The caution travels with every signed-in page.
+    expect(await page.getByText(/screening aids for research data/).count()).toBeGreaterThan(0);
+    await screenshot(page, "sites-analyst");
+
+    await list.getByRole("link", { name: DEMO_SITE.name }).click();
+    await page.getByRole("heading", { level: 1, name: DEMO_SITE.name }).waitFor();
+    expect(await page.getByRole("button", { name: "Delete site" }).count()).toBe(0);
+    await screenshot(page, "site-analyst");
+  });
+
+  test("on a narrow screen the menu opens the navigation", async () => {
+    const { page } = browser;
+    await page.setViewportSize({ width: 390, height: 780 });
+    await page.goto(`${app.url}/sites`);
+    const menu = page.getByRole("button", { name: "Menu" });
+    await menu.click();
+    expect(await menu.getAttribute("aria-expanded")).toBe("true");
+    await page.getByRole("navigation", { name: "Main" }).getByRole("link", { name: "Sites" }).waitFor();
+    await screenshot(page, "sites-mobile-menu");
+    await page.keyboard.press("Escape");
+    expect(await menu.getAttribute("aria-expanded")).toBe("false");
+  });
+});
