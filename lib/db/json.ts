@@ -1,0 +1,12 @@
+import "server-only";
+
+/**
+ * Value of a JSON column. MariaDB stores JSON as LONGTEXT, so mysql2 hands it back as a string;
+ * this parses it (and passes through values a driver already parsed). NULL stays null.
+ */
+export function jsonColumn<T>(value: unknown): T | null {
+  if (value === null || value === undefined) return null;
+  if (typeof value === "string") return JSON.parse(value) as T;
+  if (Buffer.isBuffer(value)) return JSON.parse(value.toString("utf8")) as T;
+  return value as T;
+}
