@@ -23,5 +23,11 @@ for (const f of files) {
     console.log("  (no default export; skipped)");
     continue;
   }
-  await mod.default();
+  try {
+    await mod.default();
+  } catch (e) {
+    // One broken bench should not hide the others' figures.
+    console.log(`  failed: ${(e as Error).stack ?? String(e)}`);
+    process.exitCode = 1;
+  }
 }
