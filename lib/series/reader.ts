@@ -66,7 +66,7 @@ export const DEFAULT_RANGES: Readonly<Record<KnownVariable, readonly [number, nu
   PA: [50, 110],
   RH: [0, 105],
   VPD: [-5, 150],
-  ZL: [-100, 100],
+  ZL: [-1000, 1000],
   MO_LENGTH: null,
   FC: [-100, 100],
   CO2: [100, 2000],
