@@ -1,0 +1,20 @@
+import { AuthError } from "@/lib/auth/session";
+import { handleRouteError, json } from "@/lib/http/respond";
+import { idSchema } from "@/features/review/schemas";
+import { caller, eveningAccess } from "@/features/review/server/access";
+import { getEveningDetail } from "@/features/review/server/queries";
+
+type Context = { params: Promise<{ eveningId: string }> };
+
+// GET /api/evenings/:eveningId - one evening: metrics, thresholds, history and the series around sunset
+export async function GET(request: Request, ctx: Context): Promise<Response> {
+  try {
+    const user = await caller(request);
+    const id = idSchema.safeParse((await ctx.params).eveningId);
+    if (!id.success) throw new AuthError("not_found");
+    const { site } = await eveningAccess(user, id.data);
+    return json(await getEveningDetail(id.data, site));
+  } catch (err) {
+    return handleRouteError(err);
+  }
+}

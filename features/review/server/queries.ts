@@ -1,0 +1,372 @@
+import "server-only";
+import { db } from "@/lib/db/knex";
+import type { EveningMetrics } from "@/lib/classify/evenings";
+import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
+import { AuthError } from "@/lib/auth/session";
+import type {
+  DateRange,
+  EveningDetail,
+  EveningSeries,
+  EveningSummary,
+  HistoryEntry,
+  Label,
+  QueueItem,
+  RegimePoint,
+  SeriesColumn,
+  WindowSpan,
+} from "@/features/review/schemas";
+import { thresholdRows } from "@/features/review/thresholds";
+import { rankQueue, type QueueInput } from "@/features/review/queue";
+import type { ReviewSite } from "@/features/review/server/access";
+
+/*
+ * Reads of the review feature. Callers have checked access (server/access.ts). Dates leave the
+ * database as strings (DATE_FORMAT), so nothing depends on the connection's time zone and no Date
+ * objects are built per row.
+ */
+
+const HOUR_MS = 3_600_000;
+const ISO_UTC = "'%Y-%m-%dT%H:%i:%sZ'";
+
+const SUMMARY_COLUMNS = [
+  "id",
+  db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"),
+  "final_label",
+  "auto_label",
+  "label_source",
+  db.raw(`DATE_FORMAT(sunset_utc, ${ISO_UTC}) AS sunset_utc`),
+  db.raw(`DATE_FORMAT(civil_dusk_utc, ${ISO_UTC}) AS civil_dusk_utc`),
+  "rule",
+  "reasons",
+  "metrics",
+  "reviewed",
+  "version",
+];
+
+type SummaryRow = {
+  id: number;
+  date: string;
+  final_label: Label;
+  auto_label: Label;
+  label_source: "auto" | "override";
+  sunset_utc: string | null;
+  civil_dusk_utc: string | null;
+  rule: string | null;
+  reasons: unknown;
+  metrics: unknown;
+  reviewed: number | boolean;
+  version: number;
+};
+
+// MariaDB's JSON is LONGTEXT: mysql2 hands it over as a string.
+function parsed<T>(v: unknown, fallback: T): T {
+  if (v === null || v === undefined) return fallback;
+  if (typeof v !== "string") return v as T;
+  try {
+    return JSON.parse(v) as T;
+  } catch {
+    return fallback;
+  }
+}
+
+const EMPTY_METRICS: EveningMetrics = {
+  sigmaWAfternoon: null,
+  sigmaWTransition: null,
+  sigmaWEvening: null,
+  sigmaWDecay: null,
+  ustarAfternoon: null,
+  ustarEvening: null,
+  windSpeedEvening: null,
+  wdShiftDeg: null,
+  sigmaThetaEvening: null,
+  zetaEvening: null,
+  hZeroCrossingMinutes: null,
+  coolingRateKPerH: null,
+  dewPointChangeK: null,
+  coverage: { afternoon: 0, transition: 0, evening: 0 },
+  derived: [],
+};
+
+function toSummary(r: SummaryRow): EveningSummary {
+  return {
+    id: Number(r.id),
+    date: r.date,
+    label: r.final_label,
+    autoLabel: r.auto_label,
+    source: r.label_source,
+    sunsetUtc: r.sunset_utc,
+    civilDuskUtc: r.civil_dusk_utc,
+    rule: r.rule,
+    reasons: parsed<string[]>(r.reasons, []),
+    metrics: parsed<EveningMetrics>(r.metrics, EMPTY_METRICS),
+    reviewed: Boolean(r.reviewed),
+    version: r.version,
+  };
+}
+
+/** Evenings of a site between two local dates (inclusive), by date. */
+export async function listEvenings(siteId: number, range: DateRange): Promise<EveningSummary[]> {
+  const rows: SummaryRow[] = await db("evenings")
+    .where("site_id", siteId)
+    .whereBetween("local_date", [range.from, range.to])
+    .orderBy("local_date")
+    .select(SUMMARY_COLUMNS);
+  return rows.map(toSummary);
+}
+
+/** First and last local date with an evening at a site, or null when it has none. */
+export async function eveningSpan(siteId: number): Promise<{ first: string; last: string } | null> {
+  const row: { first: string | null; last: string | null } | undefined = await db("evenings")
+    .where("site_id", siteId)
+    .first(
+      db.raw("DATE_FORMAT(MIN(local_date), '%Y-%m-%d') AS first"),
+      db.raw("DATE_FORMAT(MAX(local_date), '%Y-%m-%d') AS last"),
+    );
+  return row?.first && row.last ? { first: row.first, last: row.last } : null;
+}
+
+// Rule sets are immutable once written (a change is a new version), so caching by id is safe.
+const ruleSetCache = new Map<number, { rules: RuleSet; name: string | null }>();
+
+/** The rule set with id `id`, or the default rules when the evening names none. */
+export async function ruleSetById(id: number | null): Promise<{ rules: RuleSet; name: string | null }> {
+  if (id === null) return { rules: DEFAULT_RULE_SET, name: null };
+  const hit = ruleSetCache.get(id);
+  if (hit) return hit;
+  const row: { definition: unknown; name: string } | undefined = await db("rule_sets")
+    .where({ id })
+    .first("definition", "name");
+  let rules = DEFAULT_RULE_SET;
+  try {
+    if (row) rules = parseRuleSet(parsed<unknown>(row.definition, null));
+  } catch {
+    // An unreadable stored definition must not hide the evening; the defaults stand in.
+  }
+  const entry = { rules, name: row?.name ?? null };
+  ruleSetCache.set(id, entry);
+  return entry;
+}
+
+type DetailRow = SummaryRow & {
+  site_id: number;
+  margins: unknown;
+  rule_set_id: number | null;
+  rule_set_version: number | null;
+  computed_at: string;
+  override_note: string | null;
+  reviewed_by_name: string | null;
+  reviewed_at: string | null;
+};
+
+const MEASURES: Array<{
+  col: string;
+  key: string;
+  name: string;
+  unit: string;
+  circular?: boolean;
+  core?: boolean;
+}> = [
+  { col: "w_sigma", key: "W_SIGMA", name: "σw", unit: "m/s", core: true },
+  { col: "ustar", key: "USTAR", name: "u*", unit: "m/s", core: true },
+  { col: "ws", key: "WS", name: "Wind speed", unit: "m/s", core: true },
+  { col: "wd", key: "WD", name: "Wind direction", unit: "°", circular: true, core: true },
+  { col: "zl", key: "ZL", name: "z/L", unit: "1", core: true },
+  { col: "h", key: "H", name: "H", unit: "W/m²", core: true },
+  { col: "ta", key: "TA", name: "Air temperature", unit: "°C", core: true },
+  { col: "le", key: "LE", name: "LE", unit: "W/m²" },
+  { col: "sw_in", key: "SW_IN", name: "Shortwave in", unit: "W/m²" },
+  { col: "rh", key: "RH", name: "Relative humidity", unit: "%" },
+  { col: "vpd", key: "VPD", name: "VPD", unit: "hPa" },
+  { col: "pa", key: "PA", name: "Pressure", unit: "kPa" },
+  { col: "fc", key: "FC", name: "CO₂ flux", unit: "µmol/m²/s" },
+  { col: "co2", key: "CO2", name: "CO₂", unit: "µmol/mol" },
+];
+
+/** The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. */
+export async function eveningSeries(siteId: number, centreMs: number): Promise<EveningSeries> {
+  const tracers: Array<{
+    slot: number;
+    name: string;
+    unit: string;
+  }> = await db("site_series").where({ site_id: siteId }).orderBy("slot").select("slot", "name", "unit");
+  const cols = [...MEASURES.map((m) => m.col), ...tracers.map((t) => `tracer_${t.slot}`)];
+  // Periods that overlap the window: a half-hour starting 30 min before it still reaches in.
+  const fromMs = centreMs - 4 * HOUR_MS - 30 * 60_000;
+  const toMs = centreMs + 4 * HOUR_MS;
+  const rows: Array<Record<string, number | null> & { t: number | string }> = await db("half_hours")
+    .where("site_id", siteId)
+    .where("start_utc", ">", new Date(fromMs))
+    .where("start_utc", "<", new Date(toMs))
+    .orderBy("start_utc")
+    .select([db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"), ...cols]);
+  const starts = rows.map((r) => Number(r.t));
+  let periodMinutes = 30;
+  for (let i = 1; i < starts.length; i++)
+    periodMinutes = Math.min(periodMinutes, (starts[i]! - starts[i - 1]!) / 60_000);
+  if (!(periodMinutes > 0)) periodMinutes = 30;
+  const half = (periodMinutes * 60_000) / 2;
+  const columns: SeriesColumn[] = [];
+  const values = (col: string) =>
+    rows.map((r) => (typeof r[col] === "number" && Number.isFinite(r[col]) ? r[col] : null));
+  for (const m of MEASURES) {
+    const v = values(m.col);
+    if (!m.core && v.every((x) => x === null)) continue;
+    columns.push({ key: m.key, name: m.name, unit: m.unit, circular: m.circular, values: v });
+  }
+  for (const t of tracers) {
+    columns.push({ key: `tracer_${t.slot}`, name: t.name, unit: t.unit, values: values(`tracer_${t.slot}`) });
+  }
+  return { timeMs: starts.map((s) => s + half), periodMinutes, columns };
+}
+
+async function history(eveningId: number): Promise<HistoryEntry[]> {
+  const rows: Array<{
+    id: number;
+    kind: HistoryEntry["kind"];
+    from_label: Label | null;
+    to_label: Label | null;
+    note: string | null;
+    display_name: string | null;
+    rule_set_version: number | null;
+    at: string;
+  }> = await db("evening_events as v")
+    .leftJoin("users as u", "u.id", "v.user_id")
+    .where("v.evening_id", eveningId)
+    .orderBy("v.id")
+    .select(
+      "v.id",
+      "v.kind",
+      "v.from_label",
+      "v.to_label",
+      "v.note",
+      "u.display_name",
+      "v.rule_set_version",
+      db.raw("DATE_FORMAT(v.created_at, '%Y-%m-%dT%H:%i:%s.%fZ') AS at"),
+    );
+  return rows.map((r) => ({
+    id: Number(r.id),
+    kind: r.kind,
+    fromLabel: r.from_label,
+    toLabel: r.to_label,
+    note: r.note,
+    user: r.display_name,
+    ruleSetVersion: r.rule_set_version,
+    // %f gives microseconds; keep milliseconds like JavaScript does
+    at: r.at.replace(/\.(\d{3})\d*Z$/, ".$1Z"),
+  }));
+}
+
+async function neighbour(siteId: number, date: string, dir: "previous" | "next") {
+  const row: { id: number; date: string } | undefined = await db("evenings")
+    .where("site_id", siteId)
+    .where("local_date", dir === "previous" ? "<" : ">", date)
+    .orderBy("local_date", dir === "previous" ? "desc" : "asc")
+    .first("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"));
+  return row ? { id: Number(row.id), date: row.date } : null;
+}
+
+/** Everything the evening page shows. Throws AuthError("not_found") for an unknown id. */
+export async function getEveningDetail(eveningId: number, site: ReviewSite): Promise<EveningDetail> {
+  const row: DetailRow | undefined = await db("evenings as e")
+    .leftJoin("users as r", "r.id", "e.reviewed_by")
+    .where("e.id", eveningId)
+    .where("e.site_id", site.id)
+    .first([
+      ...SUMMARY_COLUMNS.map((c) => (typeof c === "string" ? `e.${c}` : c)),
+      "e.site_id",
+      "e.margins",
+      "e.rule_set_id",
+      "e.rule_set_version",
+      db.raw(`DATE_FORMAT(e.computed_at, ${ISO_UTC}) AS computed_at`),
+      "e.override_note",
+      "r.display_name as reviewed_by_name",
+      db.raw(`DATE_FORMAT(e.reviewed_at, ${ISO_UTC}) AS reviewed_at`),
+    ]);
+  if (!row) throw new AuthError("not_found");
+  const summary = toSummary(row);
+  const margins = parsed<Record<string, number>>(row.margins, {});
+  const { rules, name } = await ruleSetById(row.rule_set_id);
+  const centreMs = summary.sunsetUtc
+    ? Date.parse(summary.sunsetUtc)
+    : Date.parse(`${summary.date}T18:00:00Z`) - site.utcOffsetHours * HOUR_MS;
+  const windows: WindowSpan[] = (["afternoon", "transition", "evening"] as const).map((w) => ({
+    name: w,
+    startMs: centreMs + rules.windows[w].startMinutes * 60_000,
+    endMs: centreMs + rules.windows[w].endMinutes * 60_000,
+  }));
+  const [events, series, previous, next] = await Promise.all([
+    history(eveningId),
+    eveningSeries(site.id, centreMs),
+    neighbour(site.id, summary.date, "previous"),
+    neighbour(site.id, summary.date, "next"),
+  ]);
+  return {
+    evening: {
+      ...summary,
+      siteId: row.site_id,
+      margins,
+      ruleSetVersion: row.rule_set_version,
+      ruleSetName: name,
+      computedAt: row.computed_at,
+      overrideNote: row.override_note,
+      reviewedBy: row.reviewed_by_name,
+      reviewedAt: row.reviewed_at,
+    },
+    centreMs,
+    windows: summary.sunsetUtc ? windows : [],
+    thresholds: thresholdRows(rules, summary.metrics, margins, summary.rule),
+    ruleDescription: rules.rules.find((r) => r.id === summary.rule)?.description ?? null,
+    history: events,
+    series,
+    neighbours: { previous, next },
+  };
+}
+
+/** The evenings of a period ranked by how much they need a person (see rankQueue). */
+export async function getQueue(siteId: number, range: DateRange): Promise<QueueItem[]> {
+  const rows: Array<SummaryRow & { margins: unknown; rule_set_id: number | null }> = await db("evenings")
+    .where("site_id", siteId)
+    .whereBetween("local_date", [range.from, range.to])
+    .orderBy("local_date")
+    .select([...SUMMARY_COLUMNS, "margins", "rule_set_id"]);
+  const ruleSets = new Map<number | null, RuleSet>();
+  for (const id of new Set(rows.map((r) => r.rule_set_id))) ruleSets.set(id, (await ruleSetById(id)).rules);
+  const inputs: Array<QueueInput & { ruleSetId: number | null }> = rows.map((r) => ({
+    ...toSummary(r),
+    margins: parsed<Record<string, number>>(r.margins, {}),
+    ruleSetId: r.rule_set_id,
+  }));
+  return rankQueue(
+    inputs,
+    (row) => ruleSets.get((row as QueueInput & { ruleSetId: number | null }).ruleSetId) ?? DEFAULT_RULE_SET,
+  );
+}
+
+/** Evening-window sigma_w and wind speed of every evening of a site that has both. */
+export async function getRegimePoints(siteId: number): Promise<RegimePoint[]> {
+  const rows: Array<{
+    id: number;
+    date: string;
+    final_label: Label;
+    ws_evening: number;
+    sigma_w_evening: number;
+  }> = await db("evenings")
+    .where("site_id", siteId)
+    .whereNotNull("sigma_w_evening")
+    .whereNotNull("ws_evening")
+    .orderBy("local_date")
+    .select(
+      "id",
+      db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"),
+      "final_label",
+      "ws_evening",
+      "sigma_w_evening",
+    );
+  return rows.map((r) => ({
+    id: Number(r.id),
+    date: r.date,
+    label: r.final_label,
+    ws: r.ws_evening,
+    sigmaW: r.sigma_w_evening,
+  }));
+}
