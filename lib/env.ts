@@ -25,6 +25,12 @@ const schema = z.object({
   APP_URL: z.url().default("http://localhost:3000"),
   DATA_DIR: z.string().min(1).default(".data"),
   DEMO_MODE: booleanFlag.optional(),
+  // S3-compatible object storage for originals; local disk under DATA_DIR when S3_BUCKET is unset.
+  S3_BUCKET: z.string().min(1).optional(),
+  S3_ENDPOINT: z.url().optional(),
+  S3_REGION: z.string().min(1).optional(),
+  S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+  S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
   // Largest accepted upload, bytes (default 1 GB).
   IMPORT_MAX_BYTES: z.coerce.number().int().min(1).default(1_000_000_000),
 });
@@ -35,6 +41,10 @@ if (!parsed.success) {
   throw new Error(`Invalid environment:\n${problems}`);
 }
 const raw = parsed.data;
+if (raw.S3_BUCKET !== undefined) {
+  const missing = (["S3_REGION", "S3_ACCESS_KEY_ID", "S3_SECRET_ACCESS_KEY"] as const).filter((k) => raw[k] === undefined);
+  if (missing.length > 0) throw new Error(`Invalid environment:\n  S3_BUCKET is set, so ${missing.join(", ")} must be set too`);
+}
 
 /** Credentials of the private loopback server; it listens on 127.0.0.1 only. */
 export const privateServer = {
@@ -60,6 +70,17 @@ export const env = {
   DATA_DIR: dataDir,
   DEMO_MODE: raw.DEMO_MODE ?? raw.NODE_ENV !== "production",
   SESSION_SECURE: raw.APP_URL.startsWith("https://"),
+  /** Object storage for originals: S3-compatible when S3_BUCKET is set, else files under DATA_DIR/objects. */
+  S3:
+    raw.S3_BUCKET !== undefined
+      ? {
+          bucket: raw.S3_BUCKET,
+          endpoint: raw.S3_ENDPOINT,
+          region: raw.S3_REGION ?? "",
+          accessKeyId: raw.S3_ACCESS_KEY_ID ?? "",
+          secretAccessKey: raw.S3_SECRET_ACCESS_KEY ?? "",
+        }
+      : null,
   /** Largest accepted upload, bytes. */
   IMPORT_MAX_BYTES: raw.IMPORT_MAX_BYTES,
 } as const;
