@@ -15,12 +15,12 @@ type SiteRow = { id: number; group_id: number; name: string; latitude: number };
  */
 export async function visibleSites(user: SessionUser, siteIds: readonly number[]): Promise<SiteRow[]> {
   const unique = [...new Set(siteIds)];
-  const rows = (await db("sites as s")
+  const rows: Array<SiteRow & { role: string }> = await db("sites as s")
     .join("memberships as m", function () {
       this.on("m.group_id", "=", "s.group_id").andOn("m.user_id", "=", db.raw("?", [user.id]));
     })
     .whereIn("s.id", unique)
-    .select("s.id", "s.group_id", "s.name", "s.latitude", "m.role")) as Array<SiteRow & { role: string }>;
+    .select("s.id", "s.group_id", "s.name", "s.latitude", "m.role");
   if (rows.length !== unique.length || rows.some((r) => !isRole(r.role))) throw new AuthError("not_found");
   const byId = new Map(rows.map((r) => [r.id, r]));
   return unique.map((id) => byId.get(id)).filter((r): r is SiteRow & { role: string } => r !== undefined);
@@ -28,11 +28,11 @@ export async function visibleSites(user: SessionUser, siteIds: readonly number[]
 
 /** Sites of a group for the page's site picker, by name. */
 export async function sitesOfGroup(groupId: number): Promise<Array<{ id: number; name: string; latitude: number }>> {
-  return (await db("sites").where({ group_id: groupId }).orderBy("name").select("id", "name", "latitude")) as Array<{
-    id: number;
-    name: string;
-    latitude: number;
-  }>;
+  const rows: Array<{ id: number; name: string; latitude: number }> = await db("sites")
+    .where({ group_id: groupId })
+    .orderBy("name")
+    .select("id", "name", "latitude");
+  return rows;
 }
 
 const zero = (): Counts => ({ local: 0, stagnant: 0, advective: 0, unclassified: 0 });
@@ -136,10 +136,8 @@ export async function seasonReport(user: SessionUser, query: SeasonQuery): Promi
 
 /** The first and last local date with evenings at the chosen sites, or nulls. */
 export async function eveningExtent(siteIds: readonly number[]): Promise<{ from: string | null; to: string | null }> {
-  const row = (await db("evenings")
+  const row: { first: string | null; last: string | null } | undefined = await db("evenings")
     .whereIn("site_id", [...siteIds])
-    .first(db.raw("DATE_FORMAT(MIN(local_date), '%Y-%m-%d') AS first"), db.raw("DATE_FORMAT(MAX(local_date), '%Y-%m-%d') AS last"))) as
-    | { first: string | null; last: string | null }
-    | undefined;
+    .first(db.raw("DATE_FORMAT(MIN(local_date), '%Y-%m-%d') AS first"), db.raw("DATE_FORMAT(MAX(local_date), '%Y-%m-%d') AS last"));
   return { from: row?.first ?? null, to: row?.last ?? null };
 }

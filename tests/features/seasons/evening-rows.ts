@@ -59,10 +59,10 @@ export async function insertEvenings(siteId: number, seeds: readonly EveningSeed
       })),
     );
   }
-  const rows = (await db("evenings").where({ site_id: siteId }).orderBy("local_date").select("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS d"))) as Array<{
-    id: number;
-    d: string;
-  }>;
+  const rows: Array<{ id: number; d: string }> = await db("evenings")
+    .where({ site_id: siteId })
+    .orderBy("local_date")
+    .select("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS d"));
   const byDate = new Map(rows.map((r) => [r.d, r.id]));
   for (const s of seeds) ids.push(byDate.get(s.date) ?? -1);
   return ids;
