@@ -183,17 +183,17 @@ export async function startDatabase(): Promise<void> {
 
   rmSync(p.socket, { force: true });
   const child = spawn(findBinary("mariadbd")!, serverArgs(p), { detached: true, stdio: "ignore" });
-  let exited: number | null = null;
+  const state: { exited: number | null } = { exited: null };
   child.on("exit", (code) => {
-    exited = code ?? -1;
+    state.exited = code ?? -1;
   });
   child.unref();
 
   const deadline = Date.now() + 60_000;
   while (!ping(p.socket)) {
-    if (exited !== null) {
+    if (state.exited !== null) {
       throw new Error(
-        `mariadbd exited (code ${exited}) before answering. Is port ${env.DB_PORT} taken? ` +
+        `mariadbd exited (code ${state.exited}) before answering. Is port ${env.DB_PORT} taken? ` +
           `Set DB_PORT to another port. Last lines of ${p.errorLog}:\n${tail(p.errorLog)}`,
       );
     }

@@ -10,15 +10,13 @@ import { DEMO_ACCOUNTS, DEMO_GROUP_NAME, DEMO_PASSWORD, DEMO_SITE } from "../../
 /** Creates whatever part of the demo scenario is missing; returns the demo group's id. */
 export async function seedDemoScenario(knex: Knex): Promise<number> {
   return knex.transaction(async (trx) => {
-    const existing = (await trx("research_groups").where({ name: DEMO_GROUP_NAME }).first("id")) as
-      | { id: number }
-      | undefined;
+    const existing = await trx("research_groups").where({ name: DEMO_GROUP_NAME }).first("id");
     const groupId = existing?.id ?? (await trx("research_groups").insert({ name: DEMO_GROUP_NAME }))[0];
     if (groupId === undefined) throw new Error("could not create the demo group");
 
     const passwordHash = await hashPassword(DEMO_PASSWORD);
     for (const account of DEMO_ACCOUNTS) {
-      let user = (await trx("users").where({ email: account.email }).first("id")) as { id: string } | undefined;
+      let user = await trx("users").where({ email: account.email }).first("id");
       if (!user) {
         user = { id: generateIdFromEntropySize(10) };
         await trx("users").insert({

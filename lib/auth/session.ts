@@ -68,15 +68,15 @@ export async function requireSession(): Promise<CurrentSession> {
 
 /** The groups a person belongs to, by group name. */
 export async function listMemberships(userId: string): Promise<Membership[]> {
-  const rows = (await db("memberships as m")
+  const rows = await db("memberships as m")
     .join("research_groups as g", "g.id", "m.group_id")
     .where("m.user_id", userId)
     .orderBy([{ column: "g.name" }, { column: "g.id" }])
-    .select({ groupId: "g.id", groupName: "g.name", role: "m.role" })) as Array<{
-    groupId: number;
-    groupName: string;
-    role: string;
-  }>;
+    .select<Array<{ groupId: number; groupName: string; role: string }>>({
+      groupId: "g.id",
+      groupName: "g.name",
+      role: "m.role",
+    });
   return rows.filter((r): r is Membership => isRole(r.role));
 }
 
@@ -86,9 +86,7 @@ export async function listMemberships(userId: string): Promise<Membership[]> {
  */
 export async function requireRole(groupId: number, minimum: Role): Promise<{ user: SessionUser; role: Role }> {
   const { user } = await requireSession();
-  const row = (await db("memberships").where({ user_id: user.id, group_id: groupId }).first("role")) as
-    | { role: string }
-    | undefined;
+  const row = await db("memberships").where({ user_id: user.id, group_id: groupId }).first("role");
   if (!row || !isRole(row.role)) throw new AuthError("not_found");
   if (!roleAtLeast(row.role, minimum)) throw new AuthError("forbidden");
   return { user, role: row.role };
@@ -117,7 +115,8 @@ export async function writeActiveGroupCookie(groupId: number): Promise<void> {
 /** Makes `groupId` the active group after checking membership (AuthError "not_found" otherwise). */
 export async function setActiveGroup(groupId: number): Promise<Membership> {
   const { role } = await requireRole(groupId, "viewer");
-  const group = (await db("research_groups").where({ id: groupId }).first("name")) as { name: string };
+  const group = await db("research_groups").where({ id: groupId }).first("name");
+  if (!group) throw new AuthError("not_found");
   await writeActiveGroupCookie(groupId);
   return { groupId, groupName: group.name, role };
 }

@@ -31,7 +31,7 @@ export function mysqlPool(): Pool {
   if (!globalForDb.gloamingPool) {
     const pool = createPool({ ...connectionOptions(), connectionLimit: 5 });
     pool.on("connection", (conn) => {
-      conn.query(UTC_SESSION_SQL);
+      void conn.query(UTC_SESSION_SQL);
     });
     globalForDb.gloamingPool = pool;
   }

@@ -44,9 +44,7 @@ export async function signIn(_prev: ActionState | undefined, formData: FormData)
   const verdict = await checkSignInAllowed(email, ip);
   if (!verdict.allowed) return { ok: false, message: verdict.message };
 
-  const user = (await db("users").where({ email }).first("id", "password_hash")) as
-    | { id: string; password_hash: string }
-    | undefined;
+  const user = await db("users").where({ email }).first("id", "password_hash");
   const valid = user ? await verifyPassword(user.password_hash, password) : await verifyAgainstDummy(password);
   await recordSignInAttempt(email, ip, valid);
   if (!user || !valid) return { ok: false, message: "The e-mail address or the password is not right." };

@@ -1,3 +1,4 @@
+import assert from "node:assert/strict";
 import { describe, expect, test } from "vitest";
 import { signIn, signOut, signUp } from "@/features/auth/server/actions";
 import { getCurrentSession, listMemberships } from "@/lib/auth/session";
@@ -18,6 +19,7 @@ describe("sign up", () => {
     expect(outcome).toEqual({ kind: "redirect", location: "/sites" });
 
     const user = await db("users").where({ email }).first();
+    assert(user);
     expect(user).toMatchObject({ email, display_name: "New Person" });
     expect(user.password_hash).toMatch(/^\$argon2id\$/);
     expect(await listMemberships(user.id)).toEqual([{ groupId: expect.any(Number), groupName: "Canopy Lab (test)", role: "lead" }]);
