@@ -6,8 +6,11 @@ export const LABEL_CAUTION =
 export function LabelCaution({ className = "" }: { className?: string }) {
   return (
     <p className={`flex gap-2 text-xs leading-relaxed text-ink-muted ${className}`}>
-      <span aria-hidden="true" className="font-mono">
-        ⓘ
+      <span
+        aria-hidden="true"
+        className="mt-px grid size-4 shrink-0 place-items-center rounded-full border border-current text-[10px] leading-none font-semibold"
+      >
+        i
       </span>
       <span>{LABEL_CAUTION}</span>
     </p>

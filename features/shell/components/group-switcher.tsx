@@ -14,7 +14,7 @@ export function GroupSwitcher({ memberships, active }: { memberships: Membership
   const summary = (
     <span className="min-w-0 text-left">
       <span className="block text-[11px] font-medium tracking-wide text-ink-muted uppercase">Group</span>
-      <span className="block truncate text-sm font-semibold text-ink">{active.groupName}</span>
+      <span className="line-clamp-2 block text-sm font-semibold text-ink">{active.groupName}</span>
       <span className="block text-xs text-ink-muted">your role: {ROLE_WORD[active.role]}</span>
     </span>
   );

@@ -4,10 +4,13 @@ import type { SessionUser } from "@/lib/auth/session";
 import { useDisclosure } from "@/features/shell/components/use-disclosure";
 
 function initials(name: string): string {
-  const parts = name.trim().split(/\s+/).filter(Boolean);
-  return (
-    parts.length > 1 ? `${parts[0]?.[0] ?? ""}${parts.at(-1)?.[0] ?? ""}` : name.slice(0, 2)
-  ).toUpperCase();
+  // Words that start with a letter only: "Demo Analyst (invented)" gives "DA".
+  const words = name.split(/\s+/).filter((w) => /^\p{L}/u.test(w));
+  const letters = words.length > 1 ? [words[0], words[1]] : [words[0] ?? name];
+  return letters
+    .map((w) => (w ?? "").charAt(0))
+    .join("")
+    .toUpperCase();
 }
 
 /** The signed-in person and sign out; `signOutAction` comes from the app layer. */

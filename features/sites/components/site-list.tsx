@@ -39,7 +39,7 @@ export function SiteList({ groupId, canManage }: { groupId: number; canManage: b
     );
   }
   return (
-    <ul className="grid gap-4 sm:grid-cols-2 xl:grid-cols-3" aria-label="Sites">
+    <ul className="grid gap-4 lg:grid-cols-2 2xl:grid-cols-3" aria-label="Sites">
       {sites.map((s) => (
         <li key={s.id} className="grid">
           <SiteCard site={s} />
