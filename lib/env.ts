@@ -33,6 +33,15 @@ const schema = z.object({
   S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
   // Largest accepted upload, bytes (default 1 GB).
   IMPORT_MAX_BYTES: z.coerce.number().int().min(1).default(1_000_000_000),
+  // Outgoing mail. Without SMTP_HOST the app sends to the local catcher on MAIL_CATCHER_PORT.
+  SMTP_HOST: z.string().min(1).optional(),
+  SMTP_PORT: z.coerce.number().int().min(1).max(65535).optional(),
+  SMTP_USER: z.string().min(1).optional(),
+  SMTP_PASS: z.string().optional(),
+  SMTP_SECURE: booleanFlag.optional(),
+  MAIL_FROM: z.string().min(3).default("Gloaming <no-reply@gloaming.localhost>"),
+  MAIL_CATCHER_PORT: z.coerce.number().int().min(1).max(65535).default(2525),
+  MAIL_DIR: z.string().min(1).optional(),
 });
 
 const parsed = schema.safeParse(process.env);
@@ -83,6 +92,18 @@ export const env = {
       : null,
   /** Largest accepted upload, bytes. */
   IMPORT_MAX_BYTES: raw.IMPORT_MAX_BYTES,
+  /** True when mail goes to the local catcher (no SMTP_HOST given). */
+  MAIL_CATCHER: raw.SMTP_HOST === undefined,
+  SMTP_HOST: raw.SMTP_HOST ?? "127.0.0.1",
+  SMTP_PORT: raw.SMTP_PORT ?? (raw.SMTP_HOST === undefined ? raw.MAIL_CATCHER_PORT : raw.SMTP_SECURE ? 465 : 587),
+  SMTP_USER: raw.SMTP_USER,
+  SMTP_PASS: raw.SMTP_PASS,
+  /** Implicit TLS (port 465); otherwise STARTTLS is used when the server offers it. */
+  SMTP_SECURE: raw.SMTP_SECURE ?? false,
+  MAIL_FROM: raw.MAIL_FROM,
+  MAIL_CATCHER_PORT: raw.MAIL_CATCHER_PORT,
+  /** Absolute path where the local catcher stores messages (.eml + index.jsonl). */
+  MAIL_DIR: path.resolve(raw.MAIL_DIR ?? path.join(raw.DATA_DIR, "mail")),
 } as const;
 
 export type Env = typeof env;

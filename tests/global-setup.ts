@@ -9,6 +9,8 @@ import type { TestProject } from "vitest/node";
 import { connectionOptions } from "@/lib/db/connection";
 import { env } from "@/lib/env";
 import { startDatabase } from "@/scripts/db";
+import { startMailCatcher } from "@/lib/mail/catcher";
+import path from "node:path";
 
 declare module "vitest" {
   export interface ProvidedContext {
@@ -16,6 +18,10 @@ declare module "vitest" {
     databaseUrl: string;
     /** unique id of this test run (used to build the app once per run) */
     testRunId: string;
+    /** port of this run's local SMTP catcher on 127.0.0.1 */
+    mailCatcherPort: number;
+    /** directory where this run's catcher stores messages */
+    mailDir: string;
   }
 }
 
@@ -65,7 +71,12 @@ export default async function setup(project: TestProject) {
   project.provide("databaseUrl", databaseUrl);
   project.provide("testRunId", runId);
 
+  const catcher = await startMailCatcher({ dir: path.join(project.config.root, "test-results", "mail", runId), port: 0 });
+  project.provide("mailCatcherPort", catcher.port);
+  project.provide("mailDir", catcher.dir);
+
   return async () => {
+    await catcher.close();
     await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
     await admin.end();
   };

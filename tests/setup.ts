@@ -5,6 +5,11 @@
 import { inject, vi } from "vitest";
 
 process.env.DATABASE_URL = inject("databaseUrl");
+// Mail goes to this run's local catcher (started in tests/global-setup.ts), never to a real server.
+delete process.env.SMTP_HOST;
+delete process.env.SMTP_PORT;
+process.env.MAIL_CATCHER_PORT = String(inject("mailCatcherPort"));
+process.env.MAIL_DIR = inject("mailDir");
 
 vi.mock("next/headers", async () => {
   const fake = await import("./support/next");
