@@ -24,6 +24,9 @@ export const mappingEntrySchema = z.union([
 export const overlapChoiceSchema = z.enum(["cancel", "replace", "keep"]);
 export type OverlapChoice = z.infer<typeof overlapChoiceSchema>;
 
+/** "ask" (the page) stops before writing and waits for a choice; absent means "cancel" (the API default). */
+export const overlapSettingSchema = z.enum(["ask", "cancel", "replace", "keep"]);
+
 /**
  * How to read a file. Every field is optional: what is not given is recognised from the file
  * (columns) or taken from the site (UTC offset).
@@ -39,8 +42,8 @@ export const importSettingsSchema = z.object({
     .max(14, "The UTC offset must be between -14 and +14 h.")
     .refine((v) => Number.isInteger(v * 4), "The UTC offset must be a whole number of quarter hours.")
     .optional(),
-  /** What to do where the file overlaps data already stored; absent means "ask" (page) / "cancel" (API). */
-  overlap: overlapChoiceSchema.optional(),
+  /** What to do where the file overlaps data already stored; absent means "cancel". */
+  overlap: overlapSettingSchema.optional(),
   /** Save columns, codes and convention as the site's template. */
   saveTemplate: z.boolean().optional(),
 });

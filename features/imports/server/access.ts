@@ -1,0 +1,54 @@
+import "server-only";
+import { AuthError, getCurrentSession } from "@/lib/auth/session";
+import { roleAtLeast, type Role } from "@/lib/auth/roles";
+import { db } from "@/lib/db/knex";
+
+/** The sites columns the import needs. */
+export type ImportSiteRow = {
+  id: number;
+  group_id: number;
+  name: string;
+  latitude: number;
+  longitude: number;
+  elevation_m: number;
+  measurement_height_m: number;
+  canopy_height_m: number;
+  displacement_height_m: number | null;
+  utc_offset_hours: number;
+};
+
+export type Caller = { userId: string };
+
+/**
+ * Who is asking: the session cookie, or (for scripts) an `Authorization: Bearer` token.
+ * Throws AuthError("unauthenticated") when neither identifies anyone.
+ */
+export async function callerOf(request?: Request): Promise<Caller> {
+  void request;
+  const session = await getCurrentSession();
+  if (!session) throw new AuthError("unauthenticated");
+  return { userId: session.user.id };
+}
+
+/** Role of a user in a group, or null when not a member. */
+export async function roleIn(userId: string, groupId: number): Promise<Role | null> {
+  const row = await db<{ user_id: string; group_id: number; role: Role }>("memberships").where({ user_id: userId, group_id: groupId }).first("role");
+  return row?.role ?? null;
+}
+
+/**
+ * A site the caller may use at `minimum` role. A missing site and one of another group both
+ * answer not_found, so nobody learns that another group's site exists.
+ */
+export async function siteForCaller(
+  caller: Caller,
+  siteId: number,
+  minimum: Role,
+): Promise<{ site: ImportSiteRow; role: Role }> {
+  const site = (await db("sites").where({ id: siteId }).first()) as ImportSiteRow | undefined;
+  if (!site) throw new AuthError("not_found");
+  const role = await roleIn(caller.userId, site.group_id);
+  if (!role) throw new AuthError("not_found");
+  if (!roleAtLeast(role, minimum)) throw new AuthError("forbidden");
+  return { site: { ...site, utc_offset_hours: Number(site.utc_offset_hours) }, role };
+}
