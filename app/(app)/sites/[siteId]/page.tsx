@@ -27,14 +27,19 @@ export default async function SitePage({ params }: Props) {
         }
         title={site.name}
         actions={
-          canManage ? (
-            <>
-              <Link href={`/sites/${site.id}/edit`} className="btn-quiet">
-                Edit
-              </Link>
-              <DeleteSite siteId={site.id} siteName={site.name} action={deleteSiteAction} />
-            </>
-          ) : null
+          <>
+            <Link href={`/sites/${site.id}/imports`} className={roleAtLeast(role, "analyst") ? "btn-primary" : "btn-quiet"}>
+              {roleAtLeast(role, "analyst") ? "Import data" : "Imports"}
+            </Link>
+            {canManage ? (
+              <>
+                <Link href={`/sites/${site.id}/edit`} className="btn-quiet">
+                  Edit
+                </Link>
+                <DeleteSite siteId={site.id} siteName={site.name} action={deleteSiteAction} />
+              </>
+            ) : null}
+          </>
         }
       />
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
