@@ -63,7 +63,8 @@ export const privateServer = {
   password: "gloaming-local",
 } as const;
 
-const dataDir = path.resolve(raw.DATA_DIR);
+// The data directory is chosen at run time; keep Turbopack from tracing the whole project for it.
+const dataDir = path.resolve(/*turbopackIgnore: true*/ raw.DATA_DIR);
 
 export const env = {
   NODE_ENV: raw.NODE_ENV,
@@ -103,7 +104,7 @@ export const env = {
   MAIL_FROM: raw.MAIL_FROM,
   MAIL_CATCHER_PORT: raw.MAIL_CATCHER_PORT,
   /** Absolute path where the local catcher stores messages (.eml + index.jsonl). */
-  MAIL_DIR: path.resolve(raw.MAIL_DIR ?? path.join(raw.DATA_DIR, "mail")),
+  MAIL_DIR: path.resolve(/*turbopackIgnore: true*/ raw.MAIL_DIR ?? path.join(raw.DATA_DIR, "mail")),
 } as const;
 
 export type Env = typeof env;
