@@ -66,6 +66,37 @@ const ruleSchema = z.object({
   optional: z.array(z.string()).default([]),
 });
 
+/**
+ * Anomaly screening settings (lib/anomalies, lib/ustar). Optional in a rule set; every field has a
+ * default, so rule sets written before this section existed keep working unchanged.
+ */
+export const anomalySettingsSchema = z.object({
+  /** |modified z| beyond which a half-hour is anomalous (Iglewicz & Hoaglin 1993 suggest 3.5) */
+  threshold: z.number().positive().default(3.5),
+  /** consecutive anomalous half-hours needed for a rise or drop */
+  minConsecutive: z.number().int().min(1).max(12).default(2),
+  /** |modified z| for a single half-hour on its own to count as a spike */
+  spikeScore: z.number().positive().default(7),
+  /** days on each side of the evening in the moving baseline window */
+  baselineHalfWidthDays: z.number().int().min(2).max(60).default(10),
+  /** fewest other days with a value at a half-hour of day for a baseline there */
+  minBaselineDays: z.number().int().min(3).max(120).default(10),
+  /** minutes relative to sunset to screen; default: start of the transition to end of the evening window */
+  window: windowSchema.optional(),
+  ustar: z
+    .object({
+      /** SW_IN below this is night, W m-2 */
+      nightSwInMax: z.number().min(0).max(100).default(10),
+      temperatureClasses: z.number().int().min(1).max(20).default(6),
+      ustarClasses: z.number().int().min(5).max(50).default(20),
+      /** the flux of the threshold class reaches this fraction of the mean above it */
+      plateauFraction: z.number().min(0.5).max(1).default(0.99),
+      bootstrap: z.number().int().min(0).max(1000).default(100),
+    })
+    .prefault({}),
+});
+export type AnomalySettings = z.infer<typeof anomalySettingsSchema>;
+
 export const ruleSetSchema = z
   .object({
     id: z.string().min(1),
@@ -85,6 +116,7 @@ export const ruleSetSchema = z
     requireDaylightAfternoon: z.boolean().default(true),
     thresholds: z.record(z.string().regex(/^[A-Za-z][A-Za-z0-9]*$/), thresholdSchema),
     rules: z.array(ruleSchema).min(1),
+    anomalies: anomalySettingsSchema.optional(),
   })
   .superRefine((rs, ctx) => {
     const seen = new Set<string>();

@@ -38,6 +38,22 @@ export interface SyntheticOptions {
   gapFraction?: number;
   /** columns to leave out (e.g. W_SIGMA or ZL, to test derivation) */
   omit?: string[];
+  /**
+   * Injected excursions with a known truth: on each listed local date, `column` gains `amplitude`
+   * (in its unit) after sunset, ramping in over the first hour, held to S+3 h, gone by S+4 h.
+   */
+  injections?: SyntheticInjection[];
+  /**
+   * When set, nighttime FC is a temperature-driven respiration flux damped in proportion to
+   * u* below this friction velocity (m s-1): a known u* threshold for the flux filter.
+   */
+  ustarThresholdMs?: number;
+}
+
+export interface SyntheticInjection {
+  date: string;
+  column: string;
+  amplitude: number;
 }
 
 export interface SyntheticTruth {
@@ -240,6 +256,12 @@ export function generateSyntheticRange(opts: SyntheticOptions, fromDay: number, 
   for (const c of SYNTHETIC_COLUMNS) cols[c] = new Float64Array(n);
   for (const t of tracers) cols[t] = new Float64Array(n);
 
+  const injected = new Map<string, Array<{ column: string; amplitude: number }>>();
+  for (const inj of opts.injections ?? []) {
+    const list = injected.get(inj.date) ?? [];
+    list.push({ column: inj.column, amplitude: inj.amplitude });
+    injected.set(inj.date, list);
+  }
   const cache = new Map<number, DayParams>();
   const params = (day: number): DayParams => {
     let p = cache.get(day);
@@ -313,7 +335,12 @@ export function generateSyntheticRange(opts: SyntheticOptions, fromDay: number, 
 
     const accumulate = p.kind === "stagnant" ? 12 : p.kind === "local" ? 5 : 1;
     const co2 = 415 - 12 * (1 - night) * Math.min(1, sw / 500) + night * accumulate * Math.min(5, afterSunset) + 1.5 * gauss(seed, i, 11);
-    const fc = -22 * Math.min(1, sw / 800) + night * (p.kind === "stagnant" ? 1.5 : 4) + 1.2 * gauss(seed, i, 12);
+    const th = opts.ustarThresholdMs;
+    const fc =
+      th === undefined
+        ? -22 * Math.min(1, sw / 800) + night * (p.kind === "stagnant" ? 1.5 : 4) + 1.2 * gauss(seed, i, 12)
+        : // respiration doubling per 10 K, under-read by the flux system where turbulence is weak
+          -22 * Math.min(1, sw / 800) + night * 3 * Math.pow(2, (ta - 10) / 10) * Math.min(1, ustar / th) + 0.5 * gauss(seed, i, 12);
 
     (cols.SW_IN as Float64Array)[j] = sw;
     (cols.WS as Float64Array)[j] = ws;
@@ -335,6 +362,23 @@ export function generateSyntheticRange(opts: SyntheticOptions, fromDay: number, 
       (cols[name] as Float64Array)[j] =
         25 + 10 * k + 20 * Math.min(1, sw / 700) - night * loss * Math.min(5, afterSunset) + 1.5 * gauss(seed, i, 20 + k);
     });
+  }
+
+  if (injected.size > 0) {
+    for (let j = 0; j < n; j++) {
+      const tm = (startMs[j] as number) + periodMs / 2;
+      const day = Math.floor((tm - startMidnight - DAY_MS / 2) / DAY_MS);
+      const p = params(day);
+      const list = injected.get(p.date);
+      if (!list || p.sunsetMs === null) continue;
+      const h = (tm - p.sunsetMs) / HOUR_MS;
+      const shape = h <= 0 || h >= 4 ? 0 : h < 1 ? smoothstep(h) : h <= 3 ? 1 : 1 - smoothstep(h - 3);
+      if (shape === 0) continue;
+      for (const { column, amplitude } of list) {
+        const arr = cols[column];
+        if (arr) arr[j] = (arr[j] as number) + amplitude * shape;
+      }
+    }
   }
 
   const gap = opts.gapFraction ?? 0;
