@@ -26,7 +26,7 @@ const recomputeHandler: JobHandler = async (job, ctx) => {
   if (!Number.isInteger(siteId) || typeof p?.from !== "string" || typeof p.to !== "string") throw new Error("The job names no site and period.");
   await ctx.progress({ phase: "classifying", done: 0, total: 0, unit: "evenings" });
   return recomputeEvenings(siteId, p.from, p.to, {
-    onProgress: (done: number, total: number) => ctx.progress({ phase: "classifying", done, total, unit: "evenings" }),
+    onProgress: (done, total) => ctx.progress({ phase: "classifying", done, total, unit: "evenings" }),
   });
 };
 

@@ -234,9 +234,9 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   const toDate = localDate(lastStart + 86_400_000, Number(site.utc_offset_hours));
   await progress("classifying", 0, 0, "evenings");
   const result = await recomputeEvenings(imp.site_id, fromDate, toDate, {
-    onProgress: (done: number, total: number) => progress("classifying", done, total, "evenings"),
+    onProgress: (done, total) => progress("classifying", done, total, "evenings"),
   });
-  const computed = typeof result === "object" && result !== null && "computed" in result ? Number((result as { computed: number }).computed) : 0;
+  const computed = result.computed;
   report.evenings = { computed, from: fromDate, to: toDate };
   await setImport(importId, { report });
   return { outcome: "landed", importId, rows: written, evenings: computed };
