@@ -5,6 +5,7 @@ import { PageHeader } from "@/lib/ui/page-header";
 import { DeleteSite } from "@/features/sites/components/delete-site";
 import { SiteFacts } from "@/features/sites/components/site-facts";
 import { deleteSiteAction } from "@/features/sites/server/actions";
+import { SiteTabs } from "@/features/review/components/site-tabs";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 
 type Props = { params: Promise<{ siteId: string }> };
@@ -42,6 +43,7 @@ export default async function SitePage({ params }: Props) {
           </>
         }
       />
+      <SiteTabs siteId={site.id} />
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
         <section aria-labelledby="setup-title" className="card p-5">
           <h2 id="setup-title" className="mb-2 text-sm font-semibold tracking-wide text-ink-muted uppercase">
