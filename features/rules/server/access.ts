@@ -1,0 +1,62 @@
+import "server-only";
+import { db } from "@/lib/db/knex";
+import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
+import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
+import type { SiteParams } from "@/lib/classify/site";
+
+export type RulesSite = SiteParams & { id: number; groupId: number; name: string };
+
+/** Who asks (session cookie). */
+export async function callerOf(_request?: Request): Promise<SessionUser> {
+  return (await requireSession()).user;
+}
+
+/** The caller's role in a group: not a member -> not_found, below `minimum` -> forbidden. */
+export async function groupRole(user: SessionUser, groupId: number, minimum: Role): Promise<Role> {
+  const m: { role: string } | undefined = await db("memberships").where({ user_id: user.id, group_id: groupId }).first("role");
+  if (!m || !isRole(m.role)) throw new AuthError("not_found");
+  if (!roleAtLeast(m.role, minimum)) throw new AuthError("forbidden");
+  return m.role;
+}
+
+type SiteRow = {
+  id: number;
+  group_id: number;
+  name: string;
+  latitude: number;
+  longitude: number;
+  elevation_m: number;
+  measurement_height_m: number;
+  canopy_height_m: number;
+  displacement_height_m: number | null;
+  utc_offset_hours: number | string;
+};
+
+/** A site the caller may use at `minimum`, with the parameters the classifier needs. */
+export async function rulesSite(user: SessionUser, siteId: number, minimum: Role): Promise<{ site: RulesSite; role: Role }> {
+  const r = await db("sites").where({ id: siteId }).first<SiteRow | undefined>();
+  if (!r) throw new AuthError("not_found");
+  const role = await groupRole(user, r.group_id, minimum);
+  return {
+    role,
+    site: {
+      id: r.id,
+      groupId: r.group_id,
+      name: r.name,
+      latitudeDeg: r.latitude,
+      longitudeDeg: r.longitude,
+      elevationM: r.elevation_m,
+      measurementHeightM: r.measurement_height_m,
+      canopyHeightM: r.canopy_height_m,
+      displacementHeightM: r.displacement_height_m,
+      utcOffsetHours: Number(r.utc_offset_hours),
+    },
+  };
+}
+
+/** A positive integer id from a route segment; anything else names nothing (404). */
+export function idParam(raw: string): number {
+  const n = /^\d{1,12}$/.test(raw) ? Number(raw) : NaN;
+  if (!Number.isSafeInteger(n) || n <= 0) throw new AuthError("not_found");
+  return n;
+}
