@@ -55,7 +55,7 @@ describe("signing in as the demo analyst", () => {
     // The caution travels with every signed-in page.
     expect(await page.getByText(/screening aids for research data/).count()).toBeGreaterThan(0);
     await screenshot(page, "sites-analyst");
-    await page.emulateMedia({ colorScheme: "dark" });
+    await page.emulateMedia({ colorScheme: "dark", reducedMotion: "reduce" });
     await screenshot(page, "sites-analyst-dark");
     await page.emulateMedia({ colorScheme: "light" });
 
@@ -76,5 +76,31 @@ describe("signing in as the demo analyst", () => {
     await screenshot(page, "sites-mobile-menu");
     await page.keyboard.press("Escape");
     expect(await menu.getAttribute("aria-expanded")).toBe("false");
+  });
+
+  test("signing out from the account menu, then the demo lead sees field errors on a new site", async () => {
+    const { page } = browser;
+    await page.setViewportSize({ width: 1280, height: 800 });
+    await page.goto(`${app.url}/sites`);
+    await page.getByRole("button", { name: /^Account:/ }).click();
+    await page.getByRole("button", { name: "Sign out" }).click();
+    await page.waitForURL(/\/sign-in$/);
+
+    await page.getByRole("button", { name: /Fill in the demo lead/ }).click();
+    await page.getByRole("button", { name: "Sign in", exact: true }).click();
+    await page.waitForURL(/\/sites$/);
+    await page.getByRole("link", { name: /New site/ }).click();
+    await page.getByRole("heading", { level: 1, name: "New site" }).waitFor();
+    await page.getByLabel("Latitude").fill("95");
+    await page.getByRole("button", { name: "Create site" }).click();
+
+    const latitude = page.getByLabel("Latitude");
+    await page.getByText("The latitude must be at most 90°.").waitFor();
+    expect(await latitude.getAttribute("aria-invalid")).toBe("true");
+    expect(await latitude.getAttribute("aria-describedby")).toContain("latitude-error");
+    // What was typed survives the failed submit.
+    expect(await latitude.inputValue()).toBe("95");
+    expect(await page.getByText("Enter a name for the site.").count()).toBe(1);
+    await screenshot(page, "new-site-errors");
   });
 });

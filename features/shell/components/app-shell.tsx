@@ -31,7 +31,7 @@ export function AppShell({ user, memberships, active, signOutAction, children }:
     <div className="min-h-dvh md:grid md:grid-cols-[15.5rem_1fr]">
       <a
         href="#main"
-        className="fixed top-2 left-2 z-50 -translate-y-20 rounded-lg bg-dusk-700 px-3 py-2 text-sm font-medium text-white focus:translate-y-0"
+        className="sr-only rounded-lg bg-dusk-700 px-3 py-2 text-sm font-medium text-white focus:not-sr-only focus:fixed focus:top-2 focus:left-2 focus:z-50"
       >
         Skip to content
       </a>
