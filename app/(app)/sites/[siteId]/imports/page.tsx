@@ -4,6 +4,7 @@ import { roleAtLeast } from "@/lib/auth/roles";
 import { env } from "@/lib/env";
 import { LabelCaution } from "@/lib/ui/caution";
 import { PageHeader } from "@/lib/ui/page-header";
+import { SiteTabs } from "@/features/review/components/site-tabs";
 import { ImportHistory } from "@/features/imports/components/import-history";
 import { ImportWorkbench } from "@/features/imports/components/import-workbench";
 import { RecomputePanel } from "@/features/imports/components/recompute-panel";
@@ -36,6 +37,7 @@ export default async function ImportPage({ params }: Props) {
             : "Files imported into this site. Analysts and leads can import; you can read the reports."
         }
       />
+      <SiteTabs siteId={site.id} />
       <div className="grid gap-6 lg:grid-cols-[minmax(0,3fr)_minmax(0,1fr)]">
         <div className="min-w-0 space-y-8">
           {canImport ? (
