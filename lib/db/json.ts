@@ -1,8 +1,8 @@
 import "server-only";
 
 /**
- * Value of a JSON column. MariaDB stores JSON as LONGTEXT, so mysql2 hands it back as a string;
- * this parses it (and passes through values a driver already parsed). NULL stays null.
+ * Value of a JSON column. MariaDB stores JSON as LONGTEXT with a validity check; depending on the
+ * column metadata mysql2 hands it back parsed or as text. This accepts both. NULL stays null.
  */
 export function jsonColumn<T>(value: unknown): T | null {
   if (value === null || value === undefined) return null;
