@@ -1,7 +1,8 @@
 /*
  * `npm start` (and `npm run dev` with the argument "dev"): database server, pending
  * migrations, the demo scenario when the database has no accounts yet, a production build
- * when there is none or the sources changed since, then Next on APP_URL's port.
+ * when there is none or the sources changed since, then Next on APP_URL's port and the job
+ * worker (scripts/worker.ts) beside it.
  */
 import { spawn, spawnSync } from "node:child_process";
 import { existsSync, readdirSync, statSync } from "node:fs";
@@ -12,6 +13,7 @@ import { closeDb, db } from "../lib/db/knex";
 import { env } from "../lib/env";
 import { startDatabase } from "./db";
 import { startCatcherFromEnv } from "./mail-catcher";
+import { superviseWorker } from "./worker-process";
 
 const root = process.cwd();
 const nextBin = path.join(root, "node_modules", "next", "dist", "bin", "next");
@@ -68,8 +70,16 @@ async function main(): Promise<void> {
   }
   log(`serving ${env.APP_URL}`);
   const child = spawn(process.execPath, [nextBin, dev ? "dev" : "start", "-p", port], { stdio: "inherit", env: childEnv });
-  for (const sig of ["SIGINT", "SIGTERM"] as const) process.on(sig, () => child.kill(sig));
-  child.on("exit", (code) => process.exit(code ?? 0));
+  // The job worker runs beside Next; both stop together.
+  const worker = superviseWorker({ dev, env: childEnv, log });
+  for (const sig of ["SIGINT", "SIGTERM"] as const)
+    process.on(sig, () => {
+      child.kill(sig);
+      void worker.stop(sig);
+    });
+  child.on("exit", (code) => {
+    void worker.stop().then(() => process.exit(code ?? 0));
+  });
 }
 
 main().catch((err: unknown) => {
