@@ -12,4 +12,8 @@ export type NavItem = {
   minimumRole?: Role;
 };
 
-export const NAV_ITEMS: readonly NavItem[] = [{ href: "/sites", label: "Sites", glyph: "◎" }];
+export const NAV_ITEMS: readonly NavItem[] = [
+  { href: "/sites", label: "Sites", glyph: "◎" },
+  { href: "/seasons", label: "Seasons", glyph: "◔" },
+  { href: "/rules", label: "Rules", glyph: "≡" },
+];
