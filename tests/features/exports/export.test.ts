@@ -31,7 +31,7 @@ describe("export zip", () => {
       author_id: owner.user.id,
       comment: "for the export test",
     });
-    await db.raw("UPDATE sites SET active_rule_set_id = ? WHERE id = ?", [ruleSetId, siteId]);
+    await db.raw("UPDATE sites SET active_rule_set_id = ? WHERE id = ?", [Number(ruleSetId), siteId]);
     const dates = ["2021-03-01", "2021-03-02", "2021-03-03", "2021-03-04", "2021-03-05", "2021-03-06", "2021-03-07", "2021-03-08"];
     await insertEvenings(
       siteId,
