@@ -199,7 +199,17 @@ export function CalendarView({
               }}
             />
           )}
-          <p className="mt-3 text-xs text-ink-muted">
+          <p className="mt-3 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-muted">
+            <span>
+              <span aria-hidden="true">✎</span> and a ring: overridden by a person
+            </span>
+            <span>
+              <span aria-hidden="true">✓</span> reviewed
+            </span>
+            <span>dashed day: no evening stored</span>
+            <span>U: unclassified (hover or focus for the reason)</span>
+          </p>
+          <p className="mt-1 text-xs text-ink-muted">
             Keys: arrows move by day and week, Home/End to the week&apos;s ends, Page Up/Down by month, Enter opens the evening.
           </p>
         </div>

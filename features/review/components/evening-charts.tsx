@@ -13,7 +13,7 @@ import type { EveningSeries, SeriesColumn, WindowSpan } from "@/features/review/
  */
 
 const HOUR_MS = 3_600_000;
-const MARGIN = { top: 6, right: 14, bottom: 4, left: 58 };
+const MARGIN = { top: 6, right: 14, bottom: 4, left: 44 };
 const CHART_H = 96;
 const AXIS_H = 26;
 
@@ -174,7 +174,13 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
           const hasData = col.values.some((v) => v !== null);
           const zeroVisible = y.domain()[0]! < 0 && y.domain()[1]! > 0;
           return (
-            <svg key={col.key} width={width} height={h} role="img" aria-label={`${col.name} (${col.unit}) over the evening window`} className="block overflow-visible text-ink">
+            <svg
+              key={col.key}
+              viewBox={`0 0 ${width} ${h}`}
+              role="img"
+              aria-label={`${col.name} (${col.unit}) over the evening window`}
+              className="block h-auto w-full text-ink"
+            >
               <Group left={MARGIN.left} top={MARGIN.top}>
                 {windows.map((w) => (
                   <rect key={w.name} x={x(w.startMs)} width={Math.max(0, x(w.endMs) - x(w.startMs))} y={0} height={innerH} className={WINDOW_FILL[w.name]} />
@@ -226,18 +232,16 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
                   scale={y}
                   numTicks={3}
                   tickValues={col.circular ? [0, 90, 180, 270, 360] : undefined}
-                  tickFormat={(v) => (col.circular ? (["N", "E", "S", "W", "N"][Number(v) / 90] ?? String(v)) : fmt(Number(v)))}
+                  tickFormat={(v) => (col.circular ? (["N", "E", "S", "W", "N"][Number(v) / 90] ?? String(v)) : y.tickFormat(3)(Number(v)))}
                   stroke="currentColor"
                   tickStroke="currentColor"
                   tickLength={3}
                   tickLabelProps={{ className: "fill-ink-muted text-[10px]", textAnchor: "end", dx: -2, dy: 3 }}
                   strokeWidth={0.5}
                 />
-                <text x={-MARGIN.left} y={-1} className="fill-ink text-[10px] font-semibold" dominantBaseline="hanging" transform={`translate(0, ${innerH / 2 - 14})`}>
+                <text x={6} y={3} dominantBaseline="hanging" className="fill-ink stroke-surface-raised text-[10px] font-semibold" strokeWidth={3} paintOrder="stroke">
                   {col.name}
-                </text>
-                <text x={-MARGIN.left} y={12} className="fill-ink-muted text-[9px]" dominantBaseline="hanging" transform={`translate(0, ${innerH / 2 - 14})`}>
-                  {col.unit === "1" ? "" : col.unit}
+                  {col.unit === "1" ? "" : <tspan className="fill-ink-muted font-normal"> · {col.unit}</tspan>}
                 </text>
                 {last ? (
                   <AxisBottom

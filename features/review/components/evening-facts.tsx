@@ -29,7 +29,7 @@ export function ThresholdTable({ rows, rule, ruleDescription }: { rows: Threshol
         )}
       </p>
       <div className="overflow-x-auto">
-        <table className="w-full min-w-[36rem] text-sm">
+        <table className="w-full min-w-[32rem] text-sm">
           <caption className="sr-only">Metrics against thresholds; margin is positive when the condition holds</caption>
           <thead>
             <tr className="border-b border-line text-left text-xs text-ink-muted">
@@ -37,8 +37,7 @@ export function ThresholdTable({ rows, rule, ruleDescription }: { rows: Threshol
               <th scope="col" className="py-2 pr-3 font-medium">Metric</th>
               <th scope="col" className="py-2 pr-3 text-right font-medium">Value</th>
               <th scope="col" className="py-2 pr-3 text-center font-medium">Condition</th>
-              <th scope="col" className="py-2 pr-3 text-right font-medium">Margin</th>
-              <th scope="col" className="py-2 font-medium">Used by</th>
+              <th scope="col" className="py-2 text-right font-medium">Margin</th>
             </tr>
           </thead>
           <tbody>
@@ -52,6 +51,9 @@ export function ThresholdTable({ rows, rule, ruleDescription }: { rows: Threshol
                       <span className="ml-2 rounded bg-dusk-600 px-1.5 py-0.5 text-[10px] font-semibold text-white dark:bg-dusk-300 dark:text-dusk-950">deciding</span>
                     ) : null}
                     {r.description ? <span className="block text-xs text-ink-muted">{r.description}</span> : null}
+                    <span className="block text-[11px] text-ink-muted">
+                      used by <span className="font-mono">{r.rules.join(", ") || "no rule"}</span>
+                    </span>
                   </th>
                   <td className="py-2 pr-3">{METRIC_NAMES_READABLE[r.metric as MetricName] ?? r.metric}</td>
                   <td className="py-2 pr-3 text-right font-mono tabular-nums">
@@ -62,7 +64,7 @@ export function ThresholdTable({ rows, rule, ruleDescription }: { rows: Threshol
                     {r.op === "below" ? "<" : ">"} {num(r.threshold)}
                     {r.threshold !== null ? unit(r.unit) : ""}
                   </td>
-                  <td className="py-2 pr-3 text-right font-mono tabular-nums whitespace-nowrap">
+                  <td className="py-2 text-right font-mono tabular-nums whitespace-nowrap">
                     {r.margin === null ? (
                       <span className="text-ink-muted">n/a</span>
                     ) : (
@@ -74,7 +76,6 @@ export function ThresholdTable({ rows, rule, ruleDescription }: { rows: Threshol
                       </>
                     )}
                   </td>
-                  <td className="py-2 font-mono text-xs text-ink-muted">{r.rules.join(", ")}</td>
                 </tr>
               );
             })}

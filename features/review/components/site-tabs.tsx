@@ -11,6 +11,7 @@ export function SiteTabs({ siteId }: { siteId: number }) {
     { href: `/sites/${siteId}/calendar`, label: "Calendar" },
     { href: `/sites/${siteId}/review`, label: "Review queue" },
     { href: `/sites/${siteId}/regime`, label: "Regime" },
+    { href: `/sites/${siteId}/anomalies`, label: "Anomalies" },
   ];
   return (
     <nav aria-label="Site" className="-mt-4 mb-6 border-b border-line">

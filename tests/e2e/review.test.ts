@@ -1,0 +1,139 @@
+import { createRequire } from "node:module";
+import type { Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { db } from "@/lib/db/knex";
+import { DEMO_GROUP_NAME, DEMO_PASSWORD, DEMO_SITE } from "@/lib/demo/scenario";
+import { seedDemoData } from "@/db/seeds/02_demo_data";
+import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+
+/*
+ * The demo analyst reviews evenings without the mouse: calendar, evening page, an override
+ * with a note, the history. The demo data is synthetic (db/seeds/02_demo_data.ts).
+ */
+
+const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
+
+let app: RunningApp;
+let browser: BrowserSession;
+let siteId: number;
+
+beforeAll(async () => {
+  await seedDemoData(db);
+  const group = await db("research_groups").where({ name: DEMO_GROUP_NAME }).first<{ id: number }>("id");
+  const site = await db("sites").where({ group_id: group?.id ?? -1, name: DEMO_SITE.name }).first<{ id: number }>("id");
+  if (!site) throw new Error("demo site missing");
+  siteId = site.id;
+  app = await startApp();
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
+
+/** axe-core over the whole page; returns the serious and critical violations. */
+async function seriousViolations(page: Page): Promise<AxeViolation[]> {
+  await page.evaluate(axeSource);
+  const result = await page.evaluate(async () => {
+    const w = window as unknown as { axe: { run: (ctx: Document, opts: unknown) => Promise<{ violations: AxeViolation[] }> } };
+    return w.axe.run(document, { resultTypes: ["violations"] });
+  });
+  return result.violations
+    .filter((v) => v.impact === "serious" || v.impact === "critical")
+    .map((v) => ({ ...v, nodes: v.nodes.slice(0, 5) }));
+}
+
+async function activeDate(page: Page): Promise<string | null> {
+  return page.evaluate(() => document.activeElement?.getAttribute("data-date") ?? null);
+}
+
+describe("reviewing with the keyboard as the demo analyst", () => {
+  test("sign in, open the calendar, move to an evening, override it with a note, see it in the history", async () => {
+    const { page } = browser;
+    await page.goto(`${app.url}/sign-in`);
+    await page.getByLabel("E-mail address").focus();
+    await page.keyboard.type("analyst@demo.gloaming.test");
+    await page.keyboard.press("Tab");
+    await page.keyboard.type(DEMO_PASSWORD);
+    await page.keyboard.press("Enter");
+    await page.waitForURL(/\/sites$/);
+
+    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
+    await page.getByRole("grid", { name: "June 2024" }).waitFor();
+    await page.locator('a[data-date="2024-06-03"]').waitFor();
+
+    // Tab to the calendar's single tab stop, then arrows: right one day, down one week.
+    let date: string | null = null;
+    for (let i = 0; i < 60 && date === null; i++) {
+      await page.keyboard.press("Tab");
+      date = await activeDate(page);
+    }
+    expect(date).toMatch(/^2024-06-/);
+    await page.keyboard.press("ArrowRight");
+    await page.keyboard.press("ArrowDown");
+    const target = await activeDate(page);
+    expect(target).not.toBe(date);
+    // Page Down pages the month without reloading the page; Page Up comes back.
+    await page.keyboard.press("PageDown");
+    await page.getByRole("grid", { name: "July 2024" }).waitFor();
+    await page.keyboard.press("PageUp");
+    await page.getByRole("grid", { name: "June 2024" }).waitFor();
+    expect(await activeDate(page)).toBe(target);
+    await screenshot(page, "review-calendar");
+    expect(await seriousViolations(page)).toEqual([]);
+
+    await page.keyboard.press("Enter");
+    await page.waitForURL(/\/evenings\/\d+$/);
+    await page.getByRole("heading", { level: 1, name: /^Evening of/ }).waitFor();
+    await page.getByRole("img", { name: /σw/ }).first().waitFor();
+    // Hydrated: the charts have measured their container.
+    await page.waitForFunction(() => {
+      const svg = document.querySelector('svg[role="img"]');
+      const w = svg?.parentElement?.getBoundingClientRect().width ?? 0;
+      return svg?.getAttribute("viewBox")?.split(" ")[2] === String(Math.max(280, Math.floor(w)));
+    });
+    await screenshot(page, "review-evening");
+    expect(await seriousViolations(page)).toEqual([]);
+
+    const before = (await page.getByTestId("current-label").textContent())?.trim();
+    const [key, name] = before === "stagnant" ? ["3", "advective"] : ["2", "stagnant"];
+    const note = `Keyboard review: fog at the tower, wind sensor stalled (test ${Date.now()}).`;
+    // Focus on the page body, away from any field, then: label key, note, Ctrl+Enter.
+    await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur());
+    await page.keyboard.press(key);
+    await expect.poll(() => page.evaluate(() => document.activeElement?.id)).toBe("override-note");
+    await page.keyboard.type(note);
+    await page.keyboard.press("Control+Enter");
+
+    const history = page.getByRole("list", { name: "History of this evening" });
+    await history.getByText(note).waitFor();
+    expect(await history.getByText(/Override:/).count()).toBeGreaterThan(0);
+    expect((await page.getByTestId("current-label").textContent())?.trim()).toBe(name);
+    await page.emulateMedia({ colorScheme: "dark" });
+    await screenshot(page, "review-evening-dark");
+    await page.emulateMedia({ colorScheme: "light" });
+
+    // The help overlay opens with ? and closes with Escape.
+    await page.keyboard.press("?");
+    await page.getByRole("dialog", { name: "Review keys" }).waitFor();
+    await page.keyboard.press("Escape");
+  });
+
+  test("the review queue and the twelve-month view render with the override in place", async () => {
+    const { page } = browser;
+    await page.goto(`${app.url}/sites/${siteId}/review?month=2024-06`);
+    await page.getByRole("list", { name: "Evenings by need of review" }).waitFor();
+    await page.keyboard.press("j");
+    await screenshot(page, "review-queue");
+    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06&view=year`);
+    await page.getByRole("grid", { name: "Dec" }).waitFor();
+    expect(await page.locator('a[aria-label*="overridden"]').count()).toBeGreaterThan(0);
+    await screenshot(page, "review-year");
+    await page.goto(`${app.url}/sites/${siteId}/regime`);
+    await page.getByRole("img", { name: /against wind speed/ }).waitFor();
+    await screenshot(page, "review-regime");
+  });
+});
