@@ -31,6 +31,8 @@ export type SiteRow = {
   displacement_height_m: number | null;
   utc_offset_hours: number;
   notes: string | null;
+  /** the rule set whose labels the site shows (migration 20261203000200) */
+  active_rule_set_id: number | null;
   created_at: Date;
   updated_at: Date;
 };
@@ -62,7 +64,7 @@ declare module "knex/types/tables" {
     user_sessions: Table<UserSessionRow, never>;
     research_groups: Table<ResearchGroupRow, "id" | "created_at">;
     memberships: Table<MembershipRow, "created_at">;
-    sites: Table<SiteRow, "id" | "created_at" | "updated_at" | "notes" | "displacement_height_m">;
+    sites: Table<SiteRow, "id" | "created_at" | "updated_at" | "notes" | "displacement_height_m" | "active_rule_set_id">;
     audit_log: Table<AuditLogRow, "id" | "created_at" | "detail">;
     sign_in_attempts: Table<SignInAttemptRow, "id" | "created_at">;
   }

@@ -8,6 +8,7 @@ import { lucia } from "@/lib/auth/lucia";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
+import type { SiteRow } from "@/lib/db/tables";
 import { seedDemoScenario } from "@/db/seeds/01_demo_scenario";
 import { FakeClient } from "@/tests/support/next";
 
@@ -15,21 +16,7 @@ export const TEST_PASSWORD = "correct-horse-battery";
 
 export type TestUser = { id: string; email: string; displayName: string; password: string };
 export type TestGroup = { id: number; name: string };
-export type SiteRow = {
-  id: number;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number;
-  notes: string | null;
-  created_at: Date;
-  updated_at: Date;
-};
+export type { SiteRow };
 
 const hashes = new Map<string, Promise<string>>();
 const cachedHash = (password: string) => {
@@ -100,7 +87,9 @@ export async function createSiteFor(groupId: number, overrides: Partial<Omit<Sit
     notes: null,
     ...overrides,
   });
-  return (await db("sites").where({ id }).first()) as SiteRow;
+  const site = await db("sites").where({ id }).first();
+  if (!site) throw new Error("site insert returned no row");
+  return site;
 }
 
 /** Creates a lucia session for `userId` and returns the cookie a browser would send. */
