@@ -16,4 +16,6 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/sites", label: "Sites", glyph: "◎" },
   { href: "/seasons", label: "Seasons", glyph: "◔" },
   { href: "/rules", label: "Rules", glyph: "≡" },
+  { href: "/team", label: "Team", glyph: "⚇" },
+  { href: "/settings", label: "Settings", glyph: "⚙" },
 ];

@@ -115,3 +115,13 @@ export async function acceptInvitationAction(token: string, _prev: TeamActionSta
   await writeActiveGroupCookie(result.groupId);
   redirect("/sites");
 }
+
+/** The role selector of the members table: setMemberRoleAction.bind(null, groupId). */
+export async function setMemberRoleAction(groupId: number, userId: string, role: string): Promise<TeamActionState> {
+  const g = groupIdSchema.safeParse(groupId);
+  const u = userIdSchema.safeParse(userId);
+  const r = roleChangeSchema.safeParse({ role });
+  if (!g.success || !u.success) return { ok: false, message: "Unknown member." };
+  if (!r.success) return { ok: false, message: "Choose lead, analyst or viewer." };
+  return run(() => changeMemberRole(g.data, u.data, r.data.role), "Role changed.");
+}
