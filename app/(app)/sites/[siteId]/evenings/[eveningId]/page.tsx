@@ -14,6 +14,8 @@ import { EveningCharts } from "@/features/review/components/evening-charts";
 import { EveningReview } from "@/features/review/components/evening-review";
 import { HistoryList, ThresholdTable } from "@/features/review/components/evening-facts";
 import { SiteTabs } from "@/features/review/components/site-tabs";
+import { anomaliesForEvening, weakTurbulenceForEvening } from "@/lib/anomalies/server/queries";
+import { EveningAnomalies } from "@/features/anomalies/components/anomaly-tables";
 
 type Props = { params: Promise<{ siteId: string; eveningId: string }> };
 
@@ -44,6 +46,7 @@ function pct(v: number): string {
 export default async function EveningPage({ params }: Props) {
   const { site, role, detail } = await load(params);
   const e = detail.evening;
+  const [anomalies, weak] = await Promise.all([anomaliesForEvening(e.id), weakTurbulenceForEvening(e.id)]);
   const href = (n: { id: number } | null) => (n ? `/sites/${site.id}/evenings/${n.id}` : null);
   const prev = detail.neighbours.previous;
   const next = detail.neighbours.next;
@@ -148,6 +151,12 @@ export default async function EveningPage({ params }: Props) {
             previousHref={href(prev)}
             nextHref={href(next)}
           />
+          <section aria-labelledby="anomalies-title" className="card p-5">
+            <h2 id="anomalies-title" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
+              Anomalies
+            </h2>
+            <EveningAnomalies anomalies={anomalies} weak={weak} siteId={site.id} utcOffsetHours={site.utcOffsetHours} />
+          </section>
           <section aria-labelledby="history-title" className="card p-5">
             <h2 id="history-title" className="mb-3 text-sm font-semibold tracking-wide text-ink-muted uppercase">
               History
