@@ -1,8 +1,9 @@
 import "server-only";
-import { cookies } from "next/headers";
+import { cookies, headers } from "next/headers";
 import { cache } from "react";
 import { lucia } from "@/lib/auth/lucia";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
+import { bearerSecret, userForTokenSecret } from "@/lib/auth/token-store";
 import { db } from "@/lib/db/knex";
 import { env } from "@/lib/env";
 
@@ -42,8 +43,19 @@ async function trySetCookie(name: string, value: string, attributes: CookieAttrs
   }
 }
 
-/** The signed-in person of this request, or null. Cached per request. */
+/**
+ * The signed-in person of this request, or null. Cached per request. A request with
+ * `Authorization: Bearer <token>` (scripts) is judged by its personal API token alone; its
+ * sessionId is then "token:<id>".
+ */
 export const getCurrentSession = cache(async (): Promise<CurrentSession | null> => {
+  const authorization = (await headers()).get("authorization");
+  if (authorization !== null && /^bearer\b/i.test(authorization)) {
+    const secret = bearerSecret(authorization);
+    const found = secret ? await userForTokenSecret(secret) : null;
+    if (!found) return null;
+    return { user: { id: found.id, email: found.email, displayName: found.displayName }, sessionId: `token:${found.tokenId}` };
+  }
   const sessionId = (await cookies()).get(lucia.sessionCookieName)?.value;
   if (!sessionId) return null;
   const { session, user } = await lucia.validateSession(sessionId);
