@@ -339,13 +339,19 @@ function MonthGrid({ siteId, month, cellProps }: { siteId: number; month: string
   );
 }
 
-function DayCell({ siteId, date, e, shown, ...rest }: CellProps & { siteId: number; date: string }) {
+function DayCell({ siteId, date, e, shown, "aria-label": description, ...rest }: CellProps & { siteId: number; date: string }) {
   const day = Number(date.slice(8, 10));
+  // The name comes from the content (visible day number hidden, full description for readers), so
+  // what sighted and screen-reader users get agrees.
+  const name = <span className="sr-only">{description}</span>;
   const base = "group relative flex h-20 flex-col rounded-lg border p-1.5 text-left transition-colors sm:h-24";
   if (!e) {
     return (
       <div {...rest} className={`${base} border-dashed border-line text-ink-muted`}>
-        <span className="text-xs tabular-nums">{day}</span>
+        {name}
+        <span aria-hidden="true" className="text-xs tabular-nums">
+          {day}
+        </span>
       </div>
     );
   }
@@ -357,7 +363,8 @@ function DayCell({ siteId, date, e, shown, ...rest }: CellProps & { siteId: numb
       aria-describedby={e.label === "unclassified" ? tipId : undefined}
       className={`${base} border-line bg-surface-raised hover:border-dusk-400 hover:bg-surface-sunken ${shown ? "" : "opacity-30"}`}
     >
-      <span className="flex items-center justify-between text-xs tabular-nums">
+      {name}
+      <span aria-hidden="true" className="flex items-center justify-between text-xs tabular-nums">
         <span className="font-medium text-ink">{day}</span>
         <span aria-hidden="true" className="flex gap-1 text-ink-muted">
           {e.source === "override" ? <span title="overridden by a person">✎</span> : null}
