@@ -1,5 +1,6 @@
 import "server-only";
 import { AuthError, getCurrentSession } from "@/lib/auth/session";
+import { authenticateRequest } from "@/lib/auth/tokens";
 import { roleAtLeast, type Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
 
@@ -24,7 +25,13 @@ export type Caller = { userId: string };
  * Throws AuthError("unauthenticated") when neither identifies anyone.
  */
 export async function callerOf(request?: Request): Promise<Caller> {
-  void request;
+  // A bearer header is judged by the token alone; otherwise the session cookie (read through
+  // next/headers, the same cookie the request carries).
+  if (request?.headers.get("authorization")) {
+    const who = await authenticateRequest(request);
+    if (!who) throw new AuthError("unauthenticated");
+    return { userId: who.user.id };
+  }
   const session = await getCurrentSession();
   if (!session) throw new AuthError("unauthenticated");
   return { userId: session.user.id };

@@ -5,6 +5,7 @@
 import { describe, expect, test } from "vitest";
 import { GET as jobGET } from "@/app/api/jobs/[jobId]/route";
 import { GET as listGET, POST } from "@/app/api/sites/[siteId]/imports/route";
+import { createApiToken, revokeApiToken } from "@/lib/auth/tokens";
 import { db } from "@/lib/db/knex";
 import { receiveUpload } from "@/features/imports/server/upload";
 import { addMember, clientFor, createUserWithGroup } from "@/tests/support/db";
@@ -81,6 +82,24 @@ describe("POST /api/sites/:siteId/imports", () => {
   test("the limit holds while streaming, whatever the declared length", async () => {
     const req = uploadRequest(1, "x".repeat(5000));
     await expect(receiveUpload(req, 1000)).rejects.toMatchObject({ status: 413, message: expect.stringMatching(/larger than the upload limit of 1 kB/) });
+  });
+});
+
+describe("scripts with a personal API token", () => {
+  test("Bearer token: upload and poll the job; a revoked or wrong token is 401", async () => {
+    const { site, userId } = await analystWithSite();
+    const token = await createApiToken(userId, "tower computer");
+    const anon = new FakeClient();
+    const auth = { authorization: `Bearer ${token.secret}` };
+    const ok = await upload(anon, site.id, SMALL, { headers: auth });
+    expect(ok.res.status).toBe(202);
+    const job = await anon.call(() => jobGET(new Request(`${BASE}/api/jobs/${ok.body.jobId}`, { headers: auth }), { params: Promise.resolve({ jobId: String(ok.body.jobId) }) }));
+    expect(job.status).toBe(200);
+    const wrong = await upload(anon, site.id, syntheticCsv(1, { seed: 5 }), { headers: { authorization: "Bearer not-a-token" } });
+    expect(wrong.res.status).toBe(401);
+    await revokeApiToken(userId, token.id);
+    const revoked = await upload(anon, site.id, syntheticCsv(1, { seed: 6 }), { headers: auth });
+    expect(revoked.res.status).toBe(401);
   });
 });
 
