@@ -45,6 +45,8 @@ export type Counts = Record<LabelKey, number>;
 
 export interface PreviewChange {
   date: string;
+  /** the stored evening, when there is one */
+  eveningId: number | null;
   before: LabelKey | null;
   after: LabelKey;
   /** the final label when an analyst's override sits on top (it stays) */

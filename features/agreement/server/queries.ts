@@ -59,12 +59,12 @@ export async function cellEvenings(
   final: LabelKey,
   p: Period = {},
   limit = 500,
-): Promise<Array<{ date: string; note: string | null; source: "auto" | "override" }>> {
+): Promise<Array<{ id: number; date: string; note: string | null; source: "auto" | "override" }>> {
   await agreementSite(user, siteId);
-  const rows: Array<{ date: string; override_note: string | null; label_source: "auto" | "override" }> = await scoped(siteId, p)
+  const rows: Array<{ id: number; date: string; override_note: string | null; label_source: "auto" | "override" }> = await scoped(siteId, p)
     .andWhere({ auto_label: auto, final_label: final })
     .orderBy("local_date")
     .limit(limit)
-    .select(db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"), "override_note", "label_source");
-  return rows.map((r) => ({ date: r.date, note: r.override_note, source: r.label_source }));
+    .select("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"), "override_note", "label_source");
+  return rows.map((r) => ({ id: Number(r.id), date: r.date, note: r.override_note, source: r.label_source }));
 }

@@ -2,6 +2,7 @@ import "server-only";
 import { db } from "@/lib/db/knex";
 import { getRuleSet } from "@/lib/evenings/rulesets";
 import { recomputeEvenings, type RecomputeResult } from "@/lib/evenings/recompute";
+import { enqueueAnomalyDetection } from "@/lib/anomalies/server/enqueue";
 import type { Job } from "@/lib/jobs/queue";
 import type { JobContext, JobHandler } from "@/lib/jobs/worker";
 import { RECLASSIFY_JOB, type ReclassifyPayload } from "@/features/rules/server/mutations";
@@ -47,6 +48,8 @@ export const reclassifyHandler: JobHandler = async (job: Job, ctx: JobContext): 
     },
   });
   await ctx.progress({ phase: "done", done: result.computed, total: result.computed, unit: "evenings" });
+  // the rule set also holds the anomaly thresholds and windows
+  await enqueueAnomalyDetection(job.siteId, null, null);
   return result;
 };
 

@@ -25,11 +25,11 @@ export async function previewRuleSet(user: SessionUser, input: PreviewInput): Pr
   const table = await loadHalfHours(site.id, fromMs, toMs);
   const results = table.startMs.length ? classifyTable(table, site, rules) : [];
 
-  const stored: Array<{ d: string; auto_label: LabelKey; final_label: LabelKey; label_source: string }> = await db("evenings")
+  const stored: Array<{ id: number; d: string; auto_label: LabelKey; final_label: LabelKey; label_source: string }> = await db("evenings")
     .where({ site_id: site.id })
     .andWhere("local_date", ">=", input.from)
     .andWhere("local_date", "<=", input.to)
-    .select(db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS d"), "auto_label", "final_label", "label_source");
+    .select("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS d"), "auto_label", "final_label", "label_source");
   const byDate = new Map(stored.map((s) => [s.d, s]));
 
   const before = zero();
@@ -45,6 +45,7 @@ export async function previewRuleSet(user: SessionUser, input: PreviewInput): Pr
     if (s?.auto_label === r.label) continue;
     changes.push({
       date: r.date,
+      eveningId: s ? Number(s.id) : null,
       before: s?.auto_label ?? null,
       after: r.label,
       override: s?.label_source === "override" ? s.final_label : null,
