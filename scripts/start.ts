@@ -8,6 +8,7 @@ import { spawn, spawnSync } from "node:child_process";
 import { existsSync, readdirSync, statSync } from "node:fs";
 import path from "node:path";
 import { seedDemoScenario } from "../db/seeds/01_demo_scenario";
+import { seedDemoData } from "../db/seeds/02_demo_data";
 import knexConfig from "../knexfile";
 import { closeDb, db } from "../lib/db/knex";
 import { env } from "../lib/env";
@@ -50,6 +51,9 @@ async function prepareDatabase(): Promise<void> {
     if (Number(row.n) === 0) {
       await seedDemoScenario(db);
       log("seeded the demo scenario (invented group, site and accounts; password gloaming-demo)");
+      log("importing the demo scenario's synthetic two-year file through the import pipeline...");
+      await seedDemoData(db);
+      log("demo data imported and classified");
     }
   }
   await closeDb();
