@@ -10,12 +10,14 @@ import { newWorkerId, runWorker } from "@/lib/jobs/worker";
 import { closeDb } from "@/lib/db/knex";
 import { importJobHandlers } from "@/features/imports/server/jobs";
 import { rulesJobHandlers } from "@/features/rules/server/jobs";
+import { anomalyJobHandlers } from "@/features/anomalies/server/jobs";
 import { runOutbox } from "@/lib/mail/outbox";
 import { runNoticeSchedule } from "@/features/notices/server/schedule";
 
 const HANDLERS: Readonly<Record<string, JobHandler>> = {
   ...importJobHandlers,
   ...rulesJobHandlers,
+  ...anomalyJobHandlers,
 };
 
 /** Loops that run beside the job queue until the stop signal: mail delivery, notice producers. */

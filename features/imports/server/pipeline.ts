@@ -4,6 +4,7 @@ import type { Knex } from "knex";
 import { jsonColumn } from "@/lib/db/json";
 import { db } from "@/lib/db/knex";
 import { recomputeEvenings } from "@/lib/evenings/recompute";
+import { enqueueAnomalyDetection } from "@/lib/anomalies/server/enqueue";
 import { readTable, TableError } from "@/lib/series/reader";
 import { isKnownVariable } from "@/lib/series/recognize";
 import type { HalfHourTable } from "@/lib/series/types";
@@ -239,5 +240,6 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   const computed = result.computed;
   report.evenings = { computed, from: fromDate, to: toDate };
   await setImport(importId, { report });
+  await enqueueAnomalyDetection(imp.site_id, fromDate, toDate);
   return { outcome: "landed", importId, rows: written, evenings: computed };
 }
