@@ -64,7 +64,14 @@ const CSV_COLUMNS = [
 
 function csvCell(v: unknown): string {
   if (v === null || v === undefined) return "";
-  const s = typeof v === "number" ? (Number.isFinite(v) ? String(+v.toPrecision(6)) : "") : String(v);
+  const s =
+    typeof v === "number"
+      ? Number.isFinite(v)
+        ? String(+v.toPrecision(6))
+        : ""
+      : typeof v === "string"
+        ? v
+        : JSON.stringify(v);
   return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

@@ -333,7 +333,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   let fieldRole: Int32Array = new Int32Array(0);
   let missingCount: Int32Array = new Int32Array(0);
   let notNumericCount: Int32Array = new Int32Array(0);
-  let fieldCountLines: number[] = [];
+  const fieldCountLines: number[] = [];
   let fieldCountProblems = 0;
   let skippedBadTimestamps = 0;
   const bytes = { bytes: 0 };
