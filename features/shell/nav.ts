@@ -18,4 +18,5 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { href: "/rules", label: "Rules", glyph: "≡" },
   { href: "/team", label: "Team", glyph: "⚇" },
   { href: "/settings", label: "Settings", glyph: "⚙" },
+  { href: "/account", label: "Account", glyph: "◇" },
 ];
