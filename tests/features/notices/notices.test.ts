@@ -83,6 +83,20 @@ describe("weekly digest", () => {
         metrics: "{}",
       })),
     );
+    // Two anomalies on the 2026-12-08 evening (invented values).
+    const tuesday = await db("evenings").where({ site_id: site.id, local_date: "2026-12-08" }).first<{ id: number }>("id");
+    await db("anomalies").insert(
+      ["O3", "CO2"].map((series) => ({
+        site_id: site.id,
+        evening_id: tuesday.id,
+        series,
+        kind: "rise-after-sunset",
+        start_utc: new Date("2026-12-08T17:00:00Z"),
+        end_utc: new Date("2026-12-08T19:00:00Z"),
+        peak_score: 4.2,
+        periods: 4,
+      })),
+    );
     // Outside the week: not counted.
     await db("evenings").insert({ site_id: site.id, local_date: "2026-12-14", auto_label: "local", final_label: "local", reasons: "[]", margins: "{}", metrics: "{}" });
 
@@ -95,6 +109,7 @@ describe("weekly digest", () => {
     expect(text).toContain(`${site.name}: 7 evenings labelled`);
     expect(text).toContain("locally driven 1, stagnant 3, advective 2, unclassified 1");
     expect(text).toContain("overridden by an analyst: 1");
+    expect(text).toContain("anomalies: 2");
     expect(text).toMatch(/screening aids/);
     expect(linkIn(text, "/settings").pathname).toBe("/settings");
     expect(await caughtFor(quiet.email)).toHaveLength(0);
