@@ -1,6 +1,7 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
+import { authenticateRequest } from "@/lib/auth/tokens";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 
 export type ExportSite = {
@@ -18,8 +19,13 @@ export type ExportSite = {
   active_rule_set_id: number | null;
 };
 
-/** Who asks: the session cookie (API tokens are checked here as soon as they exist). */
-export async function callerOf(_request?: Request): Promise<SessionUser> {
+/** Who asks: a script's `Authorization: Bearer` API token when it sends one, else the session cookie. */
+export async function callerOf(request?: Request): Promise<SessionUser> {
+  if (request && /^bearer\b/i.test(request.headers.get("authorization") ?? "")) {
+    const who = await authenticateRequest(request);
+    if (!who) throw new AuthError("unauthenticated");
+    return who.user;
+  }
   return (await requireSession()).user;
 }
 

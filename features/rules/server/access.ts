@@ -1,13 +1,19 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
+import { authenticateRequest } from "@/lib/auth/tokens";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 import type { SiteParams } from "@/lib/classify/site";
 
 export type RulesSite = SiteParams & { id: number; groupId: number; name: string };
 
-/** Who asks (session cookie). */
-export async function callerOf(_request?: Request): Promise<SessionUser> {
+/** Who asks: a script's `Authorization: Bearer` API token when it sends one, else the session cookie. */
+export async function callerOf(request?: Request): Promise<SessionUser> {
+  if (request && /^bearer\b/i.test(request.headers.get("authorization") ?? "")) {
+    const who = await authenticateRequest(request);
+    if (!who) throw new AuthError("unauthenticated");
+    return who.user;
+  }
   return (await requireSession()).user;
 }
 

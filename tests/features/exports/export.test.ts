@@ -2,6 +2,7 @@ import { createHash } from "node:crypto";
 import Papa from "papaparse";
 import { beforeAll, describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
+import { createApiToken } from "@/lib/auth/tokens";
 import { DEFAULT_RULE_SET } from "@/lib/classify/rules";
 import { GET } from "@/app/api/sites/[siteId]/export/route";
 import { FakeClient } from "@/tests/support/next";
@@ -160,6 +161,21 @@ describe("export zip", () => {
     expect([...files.keys()].map((n) => n.split("/").pop())).toEqual(["evenings.csv", "provenance.json"]);
     const csv = [...files.values()][0]?.toString("utf8") ?? "";
     expect(csv.trim().split("\r\n")).toHaveLength(3);
+  });
+
+  test("a script with an API token gets the same zip; a wrong token is refused", async () => {
+    const { secret } = await createApiToken(viewer.id, "export script");
+    const withToken = (token: string) =>
+      new FakeClient().call(() =>
+        GET(new Request(`http://localhost/api/sites/${siteId}/export?from=2021-03-01&to=2021-03-02`, { headers: { authorization: `Bearer ${token}` } }), {
+          params: Promise.resolve({ siteId: String(siteId) }),
+        }),
+      );
+    const ok = await withToken(secret);
+    expect(ok.status).toBe(200);
+    const files = await unzipBuffer(Buffer.from(await ok.arrayBuffer()));
+    expect(files.size).toBe(2);
+    expect((await withToken(`${secret}x`)).status).toBe(401);
   });
 
   test("roles and input: other group 404, anonymous 401, bad dates 422", async () => {
