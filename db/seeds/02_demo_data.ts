@@ -15,6 +15,7 @@ import { generateSyntheticRange, type SyntheticOptions } from "@/lib/synthetic/g
 import { tableCsvChunks } from "@/lib/synthetic/csv";
 import { DEMO_ACCOUNTS, DEMO_GROUP_NAME, DEMO_SITE } from "@/lib/demo/scenario";
 import { importJobHandlers } from "@/features/imports/server/jobs";
+import { anomalyJobHandlers } from "@/features/anomalies/server/jobs";
 import { startImport } from "@/features/imports/server/mutations";
 import type { ImportSiteRow } from "@/features/imports/server/access";
 import { seedDemoScenario } from "./01_demo_scenario";
@@ -27,9 +28,34 @@ const OUTAGES: ReadonlyArray<readonly [number, number]> = [
   [493, 497],
 ];
 
+/** Demo tracers (nmol mol-1, synthetic). */
+export const DEMO_TRACERS = ["O3", "ISOPRENE"] as const;
+/** Evenings with an injected post-sunset rise of ISOPRENE: the anomaly screen's known truth. */
+export const DEMO_INJECTED_RISES: readonly string[] = [
+  "2023-02-17", "2023-04-11", "2023-05-23", "2023-07-08", "2023-08-29", "2023-10-14", "2023-12-02",
+  "2024-02-20", "2024-04-16", "2024-06-25", "2024-08-13", "2024-09-30", "2024-11-19",
+];
+/** The friction-velocity threshold built into the demo's nighttime FC, m s-1 (synthetic truth). */
+export const DEMO_USTAR_THRESHOLD_MS = 0.22;
+
+/** Generator options of the demo data (also used by tests that check the screens against its truth). */
+export function demoSyntheticOptions(site: SiteParams): SyntheticOptions {
+  return {
+    site,
+    startDate: "2023-01-01",
+    days: DAYS,
+    seed: 20_230_101,
+    gapFraction: 0.01,
+    mix: { local: 0.5, stagnant: 0.25, advective: 0.25 },
+    tracers: [...DEMO_TRACERS],
+    injections: DEMO_INJECTED_RISES.map((date) => ({ date, column: "ISOPRENE", amplitude: 25 })),
+    ustarThresholdMs: DEMO_USTAR_THRESHOLD_MS,
+  };
+}
+
 /** The synthetic demo file as CSV text chunks (header first), streamed block by block. */
 export function* demoCsvChunks(site: SiteParams): Generator<string> {
-  const opts: SyntheticOptions = { site, startDate: "2023-01-01", days: DAYS, seed: 20_230_101, gapFraction: 0.01, mix: { local: 0.5, stagnant: 0.25, advective: 0.25 } };
+  const opts = demoSyntheticOptions(site);
   let header = true;
   let day = 0;
   const cuts = [...OUTAGES, [DAYS, DAYS] as const];
@@ -67,7 +93,10 @@ export async function seedDemoData(knex: Knex, log: (m: string) => void = () => 
     stored,
     filename: DEMO_FILE_NAME,
     // Stored data of the demo site is kept as it is where this file would overlap it.
-    settings: { overlap: "keep" },
+    settings: {
+      overlap: "keep",
+      columns: Object.fromEntries(DEMO_TRACERS.map((t) => [t, { variable: t, unit: "nmol mol-1" }])),
+    },
   });
   if (started.kind === "already") {
     log("demo data: already imported");
@@ -81,7 +110,11 @@ export async function seedDemoData(knex: Knex, log: (m: string) => void = () => 
     if (job.status === "failed" || job.status === "cancelled") throw new Error(`demo data import failed: ${job.message ?? job.status}`);
     await new Promise((r) => setTimeout(r, 200));
   }
-  log(`demo data: imported ${DEMO_FILE_NAME} (synthetic, ${DAYS} days)`);
+  // the import queued the anomaly screen; run it here so the demo shows its flags at once
+  while (await runOnce({ handlers: anomalyJobHandlers })) {
+    /* until no anomalies job is queued */
+  }
+  log(`demo data: imported ${DEMO_FILE_NAME} (synthetic, ${DAYS} days), anomalies screened`);
 }
 
 export async function seed(knex: Knex): Promise<void> {
