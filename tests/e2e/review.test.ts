@@ -52,7 +52,7 @@ async function activeDate(page: Page): Promise<string | null> {
 }
 
 describe("reviewing with the keyboard as the demo analyst", () => {
-  test("sign in, open the calendar, move to an evening, override it with a note, see it in the history", async () => {
+  test("sign in, open the calendar, move to an evening, override it with a note, see it in the history", { timeout: 120_000 }, async () => {
     const { page } = browser;
     await page.goto(`${app.url}/sign-in`);
     await page.getByLabel("E-mail address").focus();
@@ -123,7 +123,7 @@ describe("reviewing with the keyboard as the demo analyst", () => {
     await page.keyboard.press("Escape");
   });
 
-  test("the review queue and the twelve-month view render with the override in place", async () => {
+  test("the review queue and the twelve-month view render with the override in place", { timeout: 60_000 }, async () => {
     const { page } = browser;
     await page.goto(`${app.url}/sites/${siteId}/review?month=2024-06`);
     await page.getByRole("list", { name: "Evenings by need of review" }).waitFor();

@@ -47,6 +47,8 @@ export function EveningReview(p: Props) {
       setChoice(null);
       setNote("");
       setSaved(done);
+      // Back to page-level keys (j/k, ?) once the note is saved.
+      noteRef.current?.blur();
       void queryClient.invalidateQueries({ queryKey: reviewKeys.site(p.siteId) });
       router.refresh();
       return;
