@@ -86,3 +86,31 @@ describe("GET /api/sites/:siteId/anomalies", () => {
     expect((await call(client, "abc")).status).toBe(404);
   });
 });
+
+test("a script reads with an API token of a member", async () => {
+  const { createApiToken } = await import("@/lib/auth/tokens");
+  const { user, group } = await createUserWithGroup({ role: "viewer" });
+  const site = await createSiteFor(group.id);
+  const { secret } = await createApiToken(user.id, "script");
+  const res = await new FakeClient().call(() =>
+    GET(
+      new Request(`http://localhost/api/sites/${site.id}/anomalies`, {
+        headers: { authorization: `Bearer ${secret}` },
+      }),
+      { params: Promise.resolve({ siteId: String(site.id) }) },
+    ),
+  );
+  expect(res.status).toBe(200);
+  expect(await res.json()).toEqual({ anomalies: [] });
+  const bad = await new FakeClient().call(() =>
+    GET(
+      new Request(`http://localhost/api/sites/${site.id}/anomalies`, {
+        headers: { authorization: "Bearer nope" },
+      }),
+      {
+        params: Promise.resolve({ siteId: String(site.id) }),
+      },
+    ),
+  );
+  expect(bad.status).toBe(401);
+});

@@ -1,8 +1,9 @@
-import { AuthError, requireSession } from "@/lib/auth/session";
+import { AuthError, requireRole, requireSession } from "@/lib/auth/session";
+import { authenticateRequest, requireRequestRole } from "@/lib/auth/tokens";
+import { db } from "@/lib/db/knex";
 import { handleRouteError, json } from "@/lib/http/respond";
 import { anomaliesInRange } from "@/lib/anomalies/server/queries";
 import { siteIdSchema } from "@/features/sites/schemas";
-import { getSiteForMember } from "@/features/sites/server/queries";
 import { anomalyRangeSchema } from "@/features/anomalies/schemas";
 
 type Context = { params: Promise<{ siteId: string }> };
@@ -10,10 +11,16 @@ type Context = { params: Promise<{ siteId: string }> };
 // GET /api/sites/:siteId/anomalies?from=&to= - anomalies of evenings in a local-date range, with each evening's current label
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
-    await requireSession();
+    // a script sends an API token (Bearer), a browser its session cookie
+    const bearer = /^bearer\b/i.test(request.headers.get("authorization") ?? "");
+    if (bearer ? !(await authenticateRequest(request)) : !(await requireSession()))
+      throw new AuthError("unauthenticated");
     const parsed = siteIdSchema.safeParse((await ctx.params).siteId);
     if (!parsed.success) throw new AuthError("not_found");
-    const { site } = await getSiteForMember(parsed.data, "viewer");
+    const site = await db("sites").where({ id: parsed.data }).first("id", "group_id");
+    if (!site) throw new AuthError("not_found");
+    if (bearer) await requireRequestRole(request, site.group_id, "viewer");
+    else await requireRole(site.group_id, "viewer");
     const params = new URL(request.url).searchParams;
     const range = anomalyRangeSchema.parse({ from: params.get("from"), to: params.get("to") });
     const rows = await anomaliesInRange(site.id, range.from ?? null, range.to ?? null);
