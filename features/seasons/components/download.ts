@@ -13,6 +13,8 @@ export function saveBlob(blob: Blob, fileName: string): void {
 /** The SVG element as a standalone SVG document (fonts and colours are inline attributes). */
 export function svgText(svg: SVGSVGElement): string {
   const clone = svg.cloneNode(true) as SVGSVGElement;
+  // the page's fit-to-card styling means nothing outside it; the file keeps its own size
+  clone.removeAttribute("style");
   clone.setAttribute("xmlns", "http://www.w3.org/2000/svg");
   clone.setAttribute("xmlns:xlink", "http://www.w3.org/1999/xlink");
   return `<?xml version="1.0" encoding="UTF-8"?>\n${new XMLSerializer().serializeToString(clone)}`;

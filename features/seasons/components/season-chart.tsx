@@ -16,13 +16,18 @@ const FILL: Record<LabelKey, string> = {
   advective: "#2f63b8",
   unclassified: "#6b6b78",
 };
-const GLYPH_INK: Record<LabelKey, string> = { local: "#ffffff", stagnant: "#111222", advective: "#ffffff", unclassified: "#ffffff" };
+const GLYPH_INK: Record<LabelKey, string> = {
+  local: "#ffffff",
+  stagnant: "#111222",
+  advective: "#ffffff",
+  unclassified: "#ffffff",
+};
 
 export type Bar = { key: string; name: string; counts: Counts };
 
 type Datum = Counts & { key: string };
 
-const MARGIN = { top: 36, right: 16, bottom: 56, left: 52 };
+const MARGIN = { top: 56, right: 16, bottom: 40, left: 52 };
 
 /**
  * Stacked bars of label counts, one bar per season (or month, or year and season), with the label
@@ -32,7 +37,9 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
   const svgRef = useRef<SVGSVGElement>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const height = 320;
-  const width = Math.max(560, MARGIN.left + MARGIN.right + bars.length * 34);
+  const width = Math.max(640, MARGIN.left + MARGIN.right + bars.length * (bars.length > 12 ? 50 : 40));
+  // up to two years of seasons shrink to the card; longer records scroll sideways at full size
+  const fit = bars.length <= 24;
   const innerW = width - MARGIN.left - MARGIN.right;
   const innerH = height - MARGIN.top - MARGIN.bottom;
   const data: Datum[] = bars.map((b) => ({ key: b.key, ...b.counts }));
@@ -41,7 +48,6 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
   const y = scaleLinear<number>({ domain: [0, max], range: [innerH, 0], nice: true });
   const color = (l: LabelKey) => FILL[l];
   const nameOf = new Map(bars.map((b) => [b.key, b.name]));
-  const rotate = bars.length > 12;
 
   const download = async (kind: "svg" | "png") => {
     const svg = svgRef.current;
@@ -60,10 +66,18 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
       <div className="flex flex-wrap items-center justify-between gap-2">
         <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
         <div className="flex gap-2">
-          <button type="button" className="btn-quiet px-2.5 py-1 text-xs" onClick={() => void download("svg")}>
+          <button
+            type="button"
+            className="btn-quiet px-2.5 py-1 text-xs"
+            onClick={() => void download("svg")}
+          >
             Chart as SVG
           </button>
-          <button type="button" className="btn-quiet px-2.5 py-1 text-xs" onClick={() => void download("png")}>
+          <button
+            type="button"
+            className="btn-quiet px-2.5 py-1 text-xs"
+            onClick={() => void download("png")}
+          >
             Chart as PNG
           </button>
         </div>
@@ -74,12 +88,21 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
         </p>
       ) : null}
       <div className="overflow-x-auto rounded-lg border border-line bg-white p-2">
-        <svg ref={svgRef} width={width} height={height} role="img" aria-label={title} fontFamily="Inter, system-ui, sans-serif">
+        <svg
+          ref={svgRef}
+          width={width}
+          height={height}
+          viewBox={`0 0 ${width} ${height}`}
+          style={fit ? { maxWidth: "100%", height: "auto" } : undefined}
+          role="img"
+          aria-label={title}
+          fontFamily="Inter, system-ui, sans-serif"
+        >
           <rect width={width} height={height} fill="#ffffff" />
           <text x={MARGIN.left} y={16} fontSize={13} fontWeight={600} fill="#171827">
             {title}
           </text>
-          <Group left={width - MARGIN.right - 4 * 104} top={8}>
+          <Group left={MARGIN.left} top={26}>
             {LABEL_ORDER.map((l, i) => (
               <g key={l} transform={`translate(${i * 104}, 0)`}>
                 <rect width={14} height={14} rx={2} fill={FILL[l]} />
@@ -96,12 +119,25 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
             {y.ticks(5).map((t) => (
               <line key={t} x1={0} x2={innerW} y1={y(t)} y2={y(t)} stroke="#e6e8f2" />
             ))}
-            <BarStack<Datum, LabelKey> data={data} keys={[...LABEL_ORDER]} x={(d) => d.key} xScale={x} yScale={y} color={color}>
+            <BarStack<Datum, LabelKey>
+              data={data}
+              keys={[...LABEL_ORDER]}
+              x={(d) => d.key}
+              xScale={x}
+              yScale={y}
+              color={color}
+            >
               {(stacks) =>
                 stacks.map((stack) =>
                   stack.bars.map((bar) => (
                     <g key={`${stack.key}-${bar.index}`}>
-                      <rect x={bar.x} y={bar.y} width={bar.width} height={Math.max(0, bar.height)} fill={bar.color}>
+                      <rect
+                        x={bar.x}
+                        y={bar.y}
+                        width={bar.width}
+                        height={Math.max(0, bar.height)}
+                        fill={bar.color}
+                      >
                         <title>{`${nameOf.get(bar.bar.data.key) ?? ""}: ${bar.bar.data[stack.key]} ${LABEL_META[stack.key].name}`}</title>
                       </rect>
                       {bar.height >= 14 && bar.width >= 12 ? (
@@ -121,18 +157,26 @@ export function SeasonChart({ title, bars, fileBase }: { title: string; bars: Ba
                 )
               }
             </BarStack>
-            <AxisLeft scale={y} numTicks={5} stroke="#9aa0bf" tickStroke="#9aa0bf" tickLabelProps={{ fill: "#4b4f6b", fontSize: 11 }} label="evenings" labelProps={{ fill: "#4b4f6b", fontSize: 11 }} />
+            <AxisLeft
+              scale={y}
+              numTicks={5}
+              stroke="#9aa0bf"
+              tickStroke="#9aa0bf"
+              tickLabelProps={{ fill: "#4b4f6b", fontSize: 11 }}
+              label="evenings"
+              labelProps={{ fill: "#4b4f6b", fontSize: 11 }}
+            />
             <AxisBottom
               top={innerH}
               scale={x}
               stroke="#9aa0bf"
               tickStroke="#9aa0bf"
               tickFormat={(k) => nameOf.get(k) ?? k}
-              tickLabelProps={() =>
-                rotate
-                  ? { fill: "#4b4f6b", fontSize: 10, textAnchor: "end" as const, angle: -45, dy: "-0.2em", dx: "-0.3em" }
-                  : { fill: "#4b4f6b", fontSize: 11, textAnchor: "middle" as const }
-              }
+              tickLabelProps={() => ({
+                fill: "#4b4f6b",
+                fontSize: bars.length > 12 ? 10 : 11,
+                textAnchor: "middle" as const,
+              })}
             />
           </Group>
         </svg>

@@ -58,7 +58,7 @@ export function SeasonControls({
             <option value="custom">A season of our own (dates below)</option>
           </select>
         </label>
-        <div className="grid grid-cols-[1.4fr_1fr_1fr] gap-2">
+        <div className="grid grid-cols-[minmax(0,1fr)_4.5rem_4.5rem] gap-2">
           <label className="space-y-1 text-xs">
             <span className="block text-ink-muted">Season name</span>
             <input name="seasonName" defaultValue={query.seasonName ?? "Growing season"} className="field-input" />

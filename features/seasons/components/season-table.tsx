@@ -5,7 +5,8 @@ import { overallCells } from "@/features/seasons/report-rows";
 /** The numbers behind the charts: per year and season, then all years. */
 export function SeasonTable({ report }: { report: SeasonReport }) {
   const name = new Map(report.categories.map((c) => [c.key, c.name]));
-  const rows = [...overallCells(report, "each"), ...overallCells(report, "all")];
+  // seasons of a year with no evenings at all (outside the period) would only be noise
+  const rows = [...overallCells(report, "each").filter((c) => c.total > 0), ...overallCells(report, "all")];
   return (
     <div className="overflow-x-auto">
       <table className="w-full min-w-[36rem] text-sm tabular-nums">
