@@ -7,6 +7,7 @@ import { spawn, spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
+import { fileURLToPath } from "node:url";
 import { join } from "node:path";
 import { createRequire } from "node:module";
 import { createConnection } from "mysql2/promise";
@@ -61,7 +62,9 @@ async function load(title: string, url: string, headers: Record<string, string>,
   );
 }
 
-async function main(): Promise<void> {
+// lib/env reads the environment once, at import: the database and data directory are chosen by
+// an outer stage that starts this file again with them set, before any app module loads.
+async function outer(): Promise<void> {
   const { startDatabase } = await import("@/scripts/db");
   const { env } = await import("@/lib/env");
   const { connectionOptions } = await import("@/lib/db/connection");
@@ -73,16 +76,27 @@ async function main(): Promise<void> {
   const url = new URL(env.DATABASE_URL);
   url.pathname = `/${name}`;
   const dir = mkdtempSync(join(tmpdir(), "gloaming-review-bench-"));
-  let server: ReturnType<typeof spawn> | null = null;
   try {
+    const childEnv = { ...process.env, DATABASE_URL: url.toString(), DATA_DIR: join(dir, "data"), REVIEW_BENCH_INNER: "1" };
     const migrate = spawnSync(process.execPath, ["--conditions=react-server", "--import", "tsx", "node_modules/knex/bin/cli.js", "migrate:latest", "--knexfile", "knexfile.ts"], {
-      env: { ...process.env, DATABASE_URL: url.toString() },
+      env: childEnv,
       encoding: "utf8",
     });
     if (migrate.status !== 0) throw new Error(`migrate failed: ${migrate.stderr}`);
-    process.env.DATABASE_URL = url.toString();
-    process.env.DATA_DIR = join(dir, "data");
+    const inner = spawn(process.execPath, ["--conditions=react-server", "--import", "tsx", fileURLToPath(import.meta.url)], { env: childEnv, stdio: "inherit" });
+    const code = await new Promise<number | null>((resolve) => inner.on("exit", resolve));
+    if (code !== 0) throw new Error(`the measuring stage failed (exit ${code})`);
+  } finally {
+    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
+    await admin.end();
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
 
+async function inner(): Promise<void> {
+  const url = process.env.DATABASE_URL!;
+  let server: ReturnType<typeof spawn> | null = null;
+  try {
     const { db, closeDb } = await import("@/lib/db/knex");
     const { seedDemoData } = await import("@/db/seeds/02_demo_data");
     const { lucia } = await import("@/lib/auth/lucia");
@@ -106,7 +120,7 @@ async function main(): Promise<void> {
     const port = 3900 + Math.floor(Math.random() * 90);
     const origin = `http://127.0.0.1:${port}`;
     server = spawn(process.execPath, [NEXT_BIN, "start", "-p", String(port), "-H", "127.0.0.1"], {
-      env: { ...process.env, NODE_ENV: "production", NEXT_TELEMETRY_DISABLED: "1", DATABASE_URL: url.toString(), APP_URL: origin },
+      env: { ...process.env, NODE_ENV: "production", NEXT_TELEMETRY_DISABLED: "1", DATABASE_URL: url, APP_URL: origin },
       stdio: "ignore",
       detached: true,
     });
@@ -136,10 +150,7 @@ async function main(): Promise<void> {
         /* already gone */
       }
     }
-    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
-    await admin.end();
-    rmSync(dir, { recursive: true, force: true });
   }
 }
 
-await main();
+await (process.env.REVIEW_BENCH_INNER ? inner() : outer());

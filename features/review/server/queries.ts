@@ -114,6 +114,30 @@ export async function listEvenings(siteId: number, range: DateRange): Promise<Ev
   return rows.map(toSummary);
 }
 
+// Stored JSON goes out as it is: parsing and re-serialising a site-year of metrics is most of the
+// cost of the calendar endpoint. MariaDB's CHECK (json_valid) guarantees the text is JSON.
+function rawJson(v: unknown, fallback: string): string {
+  if (typeof v === "string") return v;
+  return v === null || v === undefined ? fallback : JSON.stringify(v);
+}
+
+/** The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`) as JSON text. */
+export async function listEveningsJson(siteId: number, range: DateRange): Promise<string> {
+  const rows: SummaryRow[] = await db("evenings")
+    .where("site_id", siteId)
+    .whereBetween("local_date", [range.from, range.to])
+    .orderBy("local_date")
+    .select(SUMMARY_COLUMNS);
+  const parts = rows.map(
+    (r) =>
+      `{"id":${Number(r.id)},"date":"${r.date}","label":"${r.final_label}","autoLabel":"${r.auto_label}","source":"${r.label_source}",` +
+      `"sunsetUtc":${JSON.stringify(r.sunset_utc)},"civilDuskUtc":${JSON.stringify(r.civil_dusk_utc)},"rule":${JSON.stringify(r.rule)},` +
+      `"reasons":${rawJson(r.reasons, "[]")},"metrics":${rawJson(r.metrics, JSON.stringify(EMPTY_METRICS))},` +
+      `"reviewed":${r.reviewed ? "true" : "false"},"version":${Number(r.version)}}`,
+  );
+  return `{"evenings":[${parts.join(",")}]}`;
+}
+
 /** First and last local date with an evening at a site, or null when it has none. */
 export async function eveningSpan(siteId: number): Promise<{ first: string; last: string } | null> {
   const row: { first: string | null; last: string | null } | undefined = await db("evenings")

@@ -1,8 +1,8 @@
 import { AuthError } from "@/lib/auth/session";
-import { handleRouteError, json } from "@/lib/http/respond";
+import { handleRouteError } from "@/lib/http/respond";
 import { idSchema, rangeSchema } from "@/features/review/schemas";
 import { caller, siteAccess } from "@/features/review/server/access";
-import { listEvenings } from "@/features/review/server/queries";
+import { listEveningsJson } from "@/features/review/server/queries";
 
 type Context = { params: Promise<{ siteId: string }> };
 
@@ -15,7 +15,9 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
     await siteAccess(user, siteId.data);
     const q = new URL(request.url).searchParams;
     const range = rangeSchema.parse({ from: q.get("from") ?? undefined, to: q.get("to") ?? undefined });
-    return json({ evenings: await listEvenings(siteId.data, range) });
+    return new Response(await listEveningsJson(siteId.data, range), {
+      headers: { "content-type": "application/json; charset=utf-8" },
+    });
   } catch (err) {
     return handleRouteError(err);
   }
