@@ -78,23 +78,26 @@ export function metricValue(m: EveningMetrics, name: MetricName): number | null 
   }
 }
 
-const EMPTY_METRICS: EveningMetrics = {
-  sigmaWAfternoon: null,
-  sigmaWTransition: null,
-  sigmaWEvening: null,
-  sigmaWDecay: null,
-  ustarAfternoon: null,
-  ustarEvening: null,
-  windSpeedEvening: null,
-  wdShiftDeg: null,
-  sigmaThetaEvening: null,
-  zetaEvening: null,
-  hZeroCrossingMinutes: null,
-  coolingRateKPerH: null,
-  dewPointChangeK: null,
-  coverage: { afternoon: 0, transition: 0, evening: 0 },
-  derived: [],
-};
+/** Metrics of an evening without data: nothing measured, coverage zero (a fresh object each call). */
+export function emptyMetrics(): EveningMetrics {
+  return {
+    sigmaWAfternoon: null,
+    sigmaWTransition: null,
+    sigmaWEvening: null,
+    sigmaWDecay: null,
+    ustarAfternoon: null,
+    ustarEvening: null,
+    windSpeedEvening: null,
+    wdShiftDeg: null,
+    sigmaThetaEvening: null,
+    zetaEvening: null,
+    hZeroCrossingMinutes: null,
+    coolingRateKPerH: null,
+    dewPointChangeK: null,
+    coverage: { afternoon: 0, transition: 0, evening: 0 },
+    derived: [],
+  };
+}
 
 function fmt(v: number): string {
   return Math.abs(v) >= 10 ? v.toFixed(1) : v.toPrecision(3).replace(/\.?0+$/, "");
@@ -245,7 +248,7 @@ function decide(
       rule: null,
       reasons: [why],
       margins: {},
-      metrics: { ...EMPTY_METRICS, coverage: { ...EMPTY_METRICS.coverage }, derived: [] },
+      metrics: emptyMetrics(),
     };
   }
   const m = c.metrics;

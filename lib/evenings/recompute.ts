@@ -1,6 +1,6 @@
 import "server-only";
 import type { Knex } from "knex";
-import { classifyTable, type EveningMetrics, type EveningResult, type Label } from "@/lib/classify/evenings";
+import { classifyTable, emptyMetrics, type EveningResult, type Label } from "@/lib/classify/evenings";
 import type { SiteParams } from "@/lib/classify/site";
 import { db } from "@/lib/db/knex";
 import { loadHalfHours } from "@/lib/evenings/load";
@@ -225,7 +225,7 @@ async function recomputeIn(
       rule: null,
       reasons: JSON.stringify([NO_DATA_REASON]),
       margins: "{}",
-      metrics: JSON.stringify(NO_DATA_METRICS),
+      metrics: JSON.stringify(emptyMetrics()),
       sunsetMs: msOrNull(s.sunset_ms),
       duskMs: msOrNull(s.dusk_ms),
       sigmaW: null,
@@ -356,21 +356,3 @@ async function upsertBatch(trx: Knex.Transaction, siteId: number, rs: StoredRule
   );
 }
 
-/** Metrics of an evening without data: nothing measured, coverage zero. */
-const NO_DATA_METRICS: EveningMetrics = {
-  sigmaWAfternoon: null,
-  sigmaWTransition: null,
-  sigmaWEvening: null,
-  sigmaWDecay: null,
-  ustarAfternoon: null,
-  ustarEvening: null,
-  windSpeedEvening: null,
-  wdShiftDeg: null,
-  sigmaThetaEvening: null,
-  zetaEvening: null,
-  hZeroCrossingMinutes: null,
-  coolingRateKPerH: null,
-  dewPointChangeK: null,
-  coverage: { afternoon: 0, transition: 0, evening: 0 },
-  derived: [],
-};

@@ -1,6 +1,6 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
-import type { EveningMetrics } from "@/lib/classify/evenings";
+import { emptyMetrics, type EveningMetrics } from "@/lib/classify/evenings";
 import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
 import { AuthError } from "@/lib/auth/session";
 import type {
@@ -69,24 +69,6 @@ function parsed<T>(v: unknown, fallback: T): T {
   }
 }
 
-const EMPTY_METRICS: EveningMetrics = {
-  sigmaWAfternoon: null,
-  sigmaWTransition: null,
-  sigmaWEvening: null,
-  sigmaWDecay: null,
-  ustarAfternoon: null,
-  ustarEvening: null,
-  windSpeedEvening: null,
-  wdShiftDeg: null,
-  sigmaThetaEvening: null,
-  zetaEvening: null,
-  hZeroCrossingMinutes: null,
-  coolingRateKPerH: null,
-  dewPointChangeK: null,
-  coverage: { afternoon: 0, transition: 0, evening: 0 },
-  derived: [],
-};
-
 function toSummary(r: SummaryRow): EveningSummary {
   return {
     id: Number(r.id),
@@ -98,7 +80,7 @@ function toSummary(r: SummaryRow): EveningSummary {
     civilDuskUtc: r.civil_dusk_utc,
     rule: r.rule,
     reasons: parsed<string[]>(r.reasons, []),
-    metrics: parsed<EveningMetrics>(r.metrics, EMPTY_METRICS),
+    metrics: parsed<EveningMetrics>(r.metrics, emptyMetrics()),
     reviewed: Boolean(r.reviewed),
     version: r.version,
   };
@@ -132,7 +114,7 @@ export async function listEveningsJson(siteId: number, range: DateRange): Promis
     (r) =>
       `{"id":${Number(r.id)},"date":"${r.date}","label":"${r.final_label}","autoLabel":"${r.auto_label}","source":"${r.label_source}",` +
       `"sunsetUtc":${JSON.stringify(r.sunset_utc)},"civilDuskUtc":${JSON.stringify(r.civil_dusk_utc)},"rule":${JSON.stringify(r.rule)},` +
-      `"reasons":${rawJson(r.reasons, "[]")},"metrics":${rawJson(r.metrics, JSON.stringify(EMPTY_METRICS))},` +
+      `"reasons":${rawJson(r.reasons, "[]")},"metrics":${rawJson(r.metrics, JSON.stringify(emptyMetrics()))},` +
       `"reviewed":${r.reviewed ? "true" : "false"},"version":${Number(r.version)}}`,
   );
   return `{"evenings":[${parts.join(",")}]}`;
