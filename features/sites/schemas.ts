@@ -103,10 +103,29 @@ export type Site = {
   updatedAt: string;
 };
 
-/** Per-site summary shown on the list; null until imports exist. */
+/** What a site's stored data covers; null on the summary while nothing has been imported. */
+export type SiteCoverage = {
+  /** start of the first stored half-hour, ISO 8601 UTC */
+  firstUtc: string;
+  /** start of the last stored half-hour, ISO 8601 UTC */
+  lastUtc: string;
+  /** half-hours with at least one measured value */
+  presentHalfHours: number;
+  /** half-hours from the first to the last, both included */
+  spanHalfHours: number;
+  /** presentHalfHours / spanHalfHours, 0..1 */
+  share: number;
+  /** evenings stored (classified or not) */
+  evenings: number;
+};
+
+export type LabelCounts = Record<"local" | "stagnant" | "advective" | "unclassified", number>;
+
+/** Per-site summary shown on the list; coverage and labelCounts are null until data and evenings exist. */
 export type SiteSummary = Site & {
-  coverage: { firstDay: string; lastDay: string; evenings: number } | null;
-  labelCounts: Record<"local" | "stagnant" | "advective" | "unclassified", number> | null;
+  coverage: SiteCoverage | null;
+  /** evenings by their final (reviewed) label */
+  labelCounts: LabelCounts | null;
 };
 
 /** What a site action returns for expected problems; values keep what the person typed. */

@@ -2,6 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
+import { LabelCaution } from "@/lib/ui/caution";
 import { SiteCard } from "@/features/sites/components/site-card";
 import { sitesListOptions } from "@/features/sites/queries";
 
@@ -39,12 +40,15 @@ export function SiteList({ groupId, canManage }: { groupId: number; canManage: b
     );
   }
   return (
-    <ul className="grid gap-4 lg:grid-cols-2 2xl:grid-cols-3" aria-label="Sites">
-      {sites.map((s) => (
-        <li key={s.id} className="grid">
-          <SiteCard site={s} />
-        </li>
-      ))}
-    </ul>
+    <div className="space-y-4">
+      <ul className="grid gap-4 lg:grid-cols-2 2xl:grid-cols-3" aria-label="Sites">
+        {sites.map((s) => (
+          <li key={s.id} className="grid">
+            <SiteCard site={s} />
+          </li>
+        ))}
+      </ul>
+      {sites.some((s) => s.labelCounts) ? <LabelCaution /> : null}
+    </div>
   );
 }

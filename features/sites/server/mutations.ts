@@ -4,7 +4,7 @@ import { db } from "@/lib/db/knex";
 import { requireRole } from "@/lib/auth/session";
 import { recordAudit } from "@/lib/db/audit";
 import type { Site, SiteField, SiteInput } from "@/features/sites/schemas";
-import { getSiteForMember, toSite, type SiteRow } from "@/features/sites/server/queries";
+import { getSiteForMember, toSite } from "@/features/sites/server/queries";
 
 /*
  * Site changes, shared by the server actions and the route handlers. Each checks the
@@ -62,7 +62,7 @@ export async function createSite(groupId: number, input: SiteInput): Promise<Sit
   try {
     const site = await db.transaction(async (trx) => {
       const [id] = await trx("sites").insert({ group_id: groupId, ...toColumns(input) });
-      const row = await trx<SiteRow>("sites").where({ id }).first();
+      const row = await trx("sites").where({ id }).first();
       if (!row) throw new Error(`site ${String(id)} vanished after insert`);
       await audit(trx, {
         groupId,
@@ -86,7 +86,7 @@ export async function updateSite(siteId: number, input: SiteInput): Promise<Site
   try {
     const site = await db.transaction(async (trx) => {
       await trx("sites").where({ id: siteId }).update(toColumns(input));
-      const row = await trx<SiteRow>("sites").where({ id: siteId }).first();
+      const row = await trx("sites").where({ id: siteId }).first();
       if (!row) throw new Error(`site ${String(siteId)} vanished during update`);
       const after = toSite(row);
       await audit(trx, {

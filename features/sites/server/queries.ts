@@ -2,24 +2,10 @@ import "server-only";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireRole, requireSession } from "@/lib/auth/session";
 import type { Role } from "@/lib/auth/roles";
-import type { Site, SiteSummary } from "@/features/sites/schemas";
-
-/** Row of the sites table as mysql2 returns it. */
-export type SiteRow = {
-  id: number;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number;
-  notes: string | null;
-  created_at: Date;
-  updated_at: Date;
-};
+import type { SiteRow } from "@/lib/db/tables";
+import { MEASURE_COLUMNS, TRACER_SLOTS } from "@/lib/evenings/load";
+import { LABEL_ORDER } from "@/lib/ui/label-badge";
+import type { LabelCounts, Site, SiteCoverage, SiteSummary } from "@/features/sites/schemas";
 
 /** Row to client shape; dates become ISO strings so server props and API answers agree. */
 export function toSite(row: SiteRow): Site {
@@ -40,16 +26,76 @@ export function toSite(row: SiteRow): Site {
   };
 }
 
-/** Sites of one group with their summaries, by name. The caller has checked membership. */
+const HALF_HOUR_MS = 30 * 60_000;
+
+/** Every value column of half_hours: a period counts as present when one of them holds a value. */
+const VALUE_COLUMNS = [
+  ...Object.values(MEASURE_COLUMNS),
+  ...Array.from({ length: TRACER_SLOTS }, (_, i) => `tracer_${i + 1}`),
+];
+
+type CoverageRow = { site_id: number; first_utc: Date; last_utc: Date; present: number | string };
+type LabelCountRow = { site_id: number; label: keyof LabelCounts; n: number | string };
+
+/**
+ * Sites of one group with their summaries, by name. The caller has checked membership.
+ * Three queries whatever the number of sites: the sites, then half-hours and evenings each
+ * grouped by site.
+ */
 export async function listSites(groupId: number): Promise<SiteSummary[]> {
-  const rows = await db<SiteRow>("sites").where({ group_id: groupId }).orderBy("name");
-  // Coverage and label counts arrive with the import and classification features.
-  return rows.map((r) => ({ ...toSite(r), coverage: null, labelCounts: null }));
+  const groupSites = db("sites").select("id").where({ group_id: groupId });
+  const [rows, coverage, labels] = await Promise.all([
+    db("sites").where({ group_id: groupId }).orderBy("name"),
+    db("half_hours")
+      .whereIn("site_id", groupSites)
+      .groupBy("site_id")
+      .select<CoverageRow[]>(
+        "site_id",
+        db.raw("MIN(start_utc) AS first_utc"),
+        db.raw("MAX(start_utc) AS last_utc"),
+        db.raw(`COUNT(COALESCE(${VALUE_COLUMNS.map(() => "??").join(", ")})) AS present`, VALUE_COLUMNS),
+      ),
+    db("evenings")
+      .whereIn("site_id", groupSites)
+      .groupBy("site_id", "final_label")
+      .select<LabelCountRow[]>("site_id", "final_label as label", db.raw("COUNT(*) AS n")),
+  ]);
+
+  const countsBySite = new Map<number, LabelCounts>();
+  for (const r of labels) {
+    let counts = countsBySite.get(r.site_id);
+    if (!counts) {
+      counts = Object.fromEntries(LABEL_ORDER.map((l) => [l, 0])) as LabelCounts;
+      countsBySite.set(r.site_id, counts);
+    }
+    counts[r.label] += Number(r.n);
+  }
+  const coverageBySite = new Map(coverage.map((r) => [r.site_id, r]));
+
+  return rows.map((r) => {
+    const labelCounts = countsBySite.get(r.id) ?? null;
+    const c = coverageBySite.get(r.id);
+    return { ...toSite(r), coverage: c ? toCoverage(c, labelCounts) : null, labelCounts };
+  });
+}
+
+function toCoverage(c: CoverageRow, labelCounts: LabelCounts | null): SiteCoverage {
+  // The table holds half-hourly periods; the span counts both ends.
+  const spanHalfHours = Math.round((c.last_utc.getTime() - c.first_utc.getTime()) / HALF_HOUR_MS) + 1;
+  const presentHalfHours = Number(c.present);
+  return {
+    firstUtc: c.first_utc.toISOString(),
+    lastUtc: c.last_utc.toISOString(),
+    presentHalfHours,
+    spanHalfHours,
+    share: presentHalfHours / spanHalfHours,
+    evenings: labelCounts ? LABEL_ORDER.reduce((sum, l) => sum + labelCounts[l], 0) : 0,
+  };
 }
 
 /** One site of one group, or null; a site of another group is simply not found. */
 export async function getSite(groupId: number, siteId: number): Promise<Site | null> {
-  const row = await db<SiteRow>("sites").where({ id: siteId, group_id: groupId }).first();
+  const row = await db("sites").where({ id: siteId, group_id: groupId }).first();
   return row ? toSite(row) : null;
 }
 
@@ -64,7 +110,7 @@ export async function getSiteForMember(
 ): Promise<{ site: Site; role: Role; userId: string }> {
   // Without a session the answer is 401 whether or not the site exists.
   await requireSession();
-  const row = await db<SiteRow>("sites").where({ id: siteId }).first();
+  const row = await db("sites").where({ id: siteId }).first();
   if (!row) throw new AuthError("not_found");
   const { user, role } = await requireRole(row.group_id, minimum);
   return { site: toSite(row), role, userId: user.id };
