@@ -1,6 +1,12 @@
 import "server-only";
 import { ZodError, flattenError } from "zod";
 import { AuthError } from "@/lib/auth/session";
+import {
+  DATABASE_RETRY_AFTER_S,
+  DATABASE_UNAVAILABLE_MESSAGE,
+  describeDatabaseError,
+  isDatabaseUnavailable,
+} from "@/lib/db/errors";
 
 /** Body of every error answer from a route handler. */
 export type ErrorBody = {
@@ -31,7 +37,8 @@ const AUTH_ANSWERS = {
 
 /**
  * Maps anything a route handler throws to an answer: validation 422, no session 401,
- * role too low 403, unknown or hidden 404, everything else 500 with the cause logged here
+ * role too low 403, unknown or hidden 404, database unreachable 503 with Retry-After,
+ * everything else 500 with the cause logged here
  * and never sent (database messages stay on the server).
  */
 export function handleRouteError(err: unknown): Response {
@@ -46,6 +53,12 @@ export function handleRouteError(err: unknown): Response {
   if (err instanceof AuthError) {
     const [status, message] = AUTH_ANSWERS[err.code];
     return errorResponse(status, err.code, message);
+  }
+  if (isDatabaseUnavailable(err)) {
+    console.error(`route handler: database unavailable (${describeDatabaseError(err)})`);
+    const res = errorResponse(503, "unavailable", DATABASE_UNAVAILABLE_MESSAGE);
+    res.headers.set("Retry-After", String(DATABASE_RETRY_AFTER_S));
+    return res;
   }
   console.error("route handler failed", err);
   return errorResponse(500, "internal", "Something went wrong");
