@@ -125,7 +125,8 @@ export const ruleSetSchema = z
       seen.add(rule.id);
       for (const key of ["all", "optional"] as const) {
         rule[key].forEach((name, j) => {
-          if (!(name in rs.thresholds))
+          // Own keys only: "constructor" or "toString" would otherwise pass as a threshold.
+          if (!Object.hasOwn(rs.thresholds, name))
             ctx.addIssue({ code: "custom", path: ["rules", i, key, j], message: `unknown threshold "${name}"` });
         });
       }
