@@ -171,18 +171,62 @@ export type TableInput = NodeJS.ReadableStream | AsyncIterable<Uint8Array | stri
 const HEADER_SEARCH_LINES = 10;
 const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
 
-function quoteCount(text: string, end: number): number {
-  let n = 0;
-  for (let i = text.indexOf('"'); i >= 0 && i < end; i = text.indexOf('"', i + 1)) n++;
-  return n;
+/**
+ * Index of the last `newline` with an even number of quote characters before it, or -1; one
+ * pass over the text (a per-break recount made an unclosed quote quadratic in the file size).
+ */
+function lastBreakOutsideQuotes(text: string, newline: string): number {
+  let best = -1;
+  let quotes = 0;
+  let q = text.indexOf('"');
+  for (let nl = text.indexOf(newline); nl >= 0; nl = text.indexOf(newline, nl + newline.length)) {
+    while (q >= 0 && q < nl) {
+      quotes++;
+      q = text.indexOf('"', q + 1);
+    }
+    if (quotes % 2 === 0) best = nl;
+  }
+  return best;
 }
+
+/**
+ * Longest line the reader holds while waiting for its end, characters. Tower lines are well
+ * under 10 kB; a line beyond this is an unclosed quote or not a table, and refusing it bounds
+ * both memory and work per chunk.
+ */
+export const MAX_LINE_CHARS = 1_000_000;
 const MAX_META_LINES = 5;
 
-async function* decodeText(input: TableInput, counter: { bytes: number }): AsyncGenerator<string> {
+/** What decodeText found out about the bytes. */
+interface DecodeState {
+  bytes: number;
+  /** Set when the text was not UTF-8 and was decoded otherwise. */
+  encodingNote: string | null;
+}
+
+/**
+ * The decoder for a stream starting with `head`: UTF-16 when it opens with a UTF-16 byte-order
+ * mark (spreadsheet programs write "Unicode text" so), Windows-1252 (a superset of Latin-1) when
+ * the first chunk is not valid UTF-8, else UTF-8. The default decoders drop the byte-order mark.
+ */
+function decoderFor(head: Uint8Array, state: DecodeState): TextDecoder {
+  if (head[0] === 0xff && head[1] === 0xfe) return new TextDecoder("utf-16le");
+  if (head[0] === 0xfe && head[1] === 0xff) return new TextDecoder("utf-16be");
+  try {
+    new TextDecoder("utf-8", { fatal: true }).decode(head, { stream: true });
+    return new TextDecoder("utf-8");
+  } catch {
+    state.encodingNote = "the file is not UTF-8; it was read as Latin-1 (Windows-1252): check that names and units look right";
+    return new TextDecoder("windows-1252");
+  }
+}
+
+async function* decodeText(input: TableInput, counter: DecodeState): AsyncGenerator<string> {
   const source: AsyncIterable<Uint8Array | string> =
     typeof input === "string" ? [input] as unknown as AsyncIterable<string> : (input as AsyncIterable<Uint8Array | string>);
-  // Default TextDecoder drops a leading byte-order mark.
-  const decoder = new TextDecoder("utf-8");
+  let decoder: TextDecoder | null = null;
+  const early: Uint8Array[] = [];
+  let earlyBytes = 0;
   let first = true;
   // Papaparse guesses the delimiter from its first chunk: give it enough lines.
   let head = "";
@@ -192,8 +236,17 @@ async function* decodeText(input: TableInput, counter: { bytes: number }): Async
       text = chunk;
       counter.bytes += chunk.length;
     } else {
-      text = decoder.decode(chunk, { stream: true });
       counter.bytes += chunk.byteLength;
+      if (!decoder) {
+        // The encoding is judged on the first few kB, however the stream is chunked.
+        early.push(chunk);
+        earlyBytes += chunk.byteLength;
+        if (earlyBytes < 4096) continue;
+        const joined = Buffer.concat(early);
+        early.length = 0;
+        decoder = decoderFor(joined, counter);
+        text = decoder.decode(joined, { stream: true });
+      } else text = decoder.decode(chunk, { stream: true });
     }
     if (first) {
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
@@ -210,7 +263,12 @@ async function* decodeText(input: TableInput, counter: { bytes: number }): Async
     }
     yield text;
   }
-  const tail = decoder.decode();
+  let tail = "";
+  if (!decoder && early.length > 0) {
+    const joined = Buffer.concat(early);
+    tail = decoderFor(joined, counter).decode(joined);
+    if (first && tail.charCodeAt(0) === 0xfeff) tail = tail.slice(1);
+  } else if (decoder) tail = decoder.decode();
   if (head || tail) yield head + tail;
 }
 
@@ -336,7 +394,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   const fieldCountLines: number[] = [];
   let fieldCountProblems = 0;
   let skippedBadTimestamps = 0;
-  const bytes = { bytes: 0 };
+  const bytes: DecodeState = { bytes: 0, encodingNote: null };
 
   let tsA = -1;
   let tsB = -1;
@@ -636,21 +694,31 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
       handleRows(res.data);
     }
   };
+  /** What is held back waiting for a line break stays below the limit: no runaway line. */
+  const tooLong = (held: string): string => {
+    if (held.length > MAX_LINE_CHARS) {
+      // Held text with line breaks in it was not cut only because a quote is open.
+      const quoted = newline !== "" && held.includes(newline);
+      throw new TableError(
+        line + 1,
+        `line ${line + 1} is longer than ${MAX_LINE_CHARS.toLocaleString("en")} characters` +
+          (quoted ? ': a quote (") opened on it is never closed' : ": is this a table with one record per line?"),
+      );
+    }
+    return held;
+  };
   for await (const chunk of decodeText(input, bytes)) {
     let text = carry + chunk;
     if (!newline) newline = text.includes("\r\n") ? "\r\n" : text.includes("\n") ? "\n" : text.includes("\r") ? "\r" : "";
     if (!newline) {
-      carry = text;
+      carry = tooLong(text);
       continue;
     }
     // Cut after the last line break that is outside quotes (quotes pair up in CSV, so an odd
     // count before the cut means a quoted field continues into the next chunk).
-    let cut = text.lastIndexOf(newline);
-    if (text.indexOf('"') >= 0) {
-      while (cut >= 0 && quoteCount(text, cut) % 2 === 1) cut = text.lastIndexOf(newline, cut - 1);
-    }
+    const cut = text.indexOf('"') >= 0 ? lastBreakOutsideQuotes(text, newline) : text.lastIndexOf(newline);
     if (cut < 0) {
-      carry = text;
+      carry = tooLong(text);
       continue;
     }
     carry = text.slice(cut + newline.length);
@@ -680,6 +748,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   const n = st.n;
   if (n === 0) throw new TableError(line, "no data rows after the header");
 
+  if (bytes.encodingNote) warnings.push(bytes.encodingNote);
   if (parseWarnings > 0) warnings.push(`${parseWarnings} CSV problems (e.g. ${firstParseErrors.join("; ")})`);
   if (fieldCountProblems > 0) {
     warnings.push(`${fieldCountProblems} rows have a different number of fields than the header (${headers.length}); missing fields read as missing (lines ${fieldCountLines.join(", ")}${fieldCountProblems > fieldCountLines.length ? ", ..." : ""})`);
