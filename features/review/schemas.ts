@@ -168,6 +168,9 @@ export type QueueItem = {
   /** smaller = needs a person sooner */
   need: number;
   why: string;
+  /** anomalies of the evening and whether its night had fluxes under weak turbulence */
+  anomalyCount?: number;
+  weakTurbulence?: boolean;
 };
 
 /** One point of the regime chart. */

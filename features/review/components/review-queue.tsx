@@ -10,6 +10,7 @@ import type { DateRange, Label } from "@/features/review/schemas";
 import { postOverride, postReviewed, queueOptions, reviewKeys, type ChangeOutcome } from "@/features/review/queries";
 import { KeyHelp, useReviewKeys } from "@/features/review/components/review-keys";
 import { dayTitle } from "@/features/review/calendar-grid";
+import { ANOMALY_GLYPH, WEAK_GLYPH } from "@/features/review/flags";
 
 /**
  * The review queue: the evenings of a period that most need a person first. Driven from the
@@ -143,6 +144,12 @@ export function ReviewQueue({ siteId, range, canEdit }: { siteId: number; range:
                     {it.why}
                   </span>
                 </span>
+                {it.anomalyCount || it.weakTurbulence ? (
+                  <span aria-hidden="true" className="shrink-0 text-xs" title="anomalies or weak turbulence: see the reason">
+                    {it.anomalyCount ? ANOMALY_GLYPH : ""}
+                    {it.weakTurbulence ? WEAK_GLYPH : ""}
+                  </span>
+                ) : null}
                 <span className="shrink-0 text-xs" aria-label={it.reviewed ? "reviewed" : "not reviewed"}>
                   {it.source === "override" ? "✎ " : ""}
                   {it.reviewed ? "✓" : "•"}

@@ -18,6 +18,8 @@ import type {
 import { thresholdRows } from "@/features/review/thresholds";
 import { rankQueue, type QueueInput } from "@/features/review/queue";
 import type { ReviewSite } from "@/features/review/server/access";
+import { anomaliesInRange, weakTurbulenceForSite } from "@/lib/anomalies/server/queries";
+import { flagsByDate } from "@/features/review/flags";
 
 /*
  * Reads of the review feature. Callers have checked access (server/access.ts). Dates leave the
@@ -330,17 +332,28 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
 
 /** The evenings of a period ranked by how much they need a person (see rankQueue). */
 export async function getQueue(siteId: number, range: DateRange): Promise<QueueItem[]> {
-  const rows: Array<SummaryRow & { margins: unknown; rule_set_id: number | null }> = await db("evenings")
-    .where("site_id", siteId)
-    .whereBetween("local_date", [range.from, range.to])
-    .orderBy("local_date")
-    .select([...SUMMARY_COLUMNS, "margins", "rule_set_id"]);
+  const [rows, anomalies, weak] = await Promise.all([
+    db("evenings")
+      .where("site_id", siteId)
+      .whereBetween("local_date", [range.from, range.to])
+      .orderBy("local_date")
+      .select<Array<SummaryRow & { margins: unknown; rule_set_id: number | null }>>([
+        ...SUMMARY_COLUMNS,
+        "margins",
+        "rule_set_id",
+      ]),
+    anomaliesInRange(siteId, range.from, range.to),
+    // one row per night: a range is at most a few years (rangeSchema), so no page is needed
+    weakTurbulenceForSite(siteId, { from: range.from, to: range.to }, { limit: 100_000 }),
+  ]);
+  const flags = flagsByDate(anomalies, weak.evenings);
   const ruleSets = new Map<number | null, RuleSet>();
   for (const id of new Set(rows.map((r) => r.rule_set_id))) ruleSets.set(id, (await ruleSetById(id)).rules);
   const inputs: Array<QueueInput & { ruleSetId: number | null }> = rows.map((r) => ({
     ...toSummary(r),
     margins: parsed<Record<string, number>>(r.margins, {}),
     ruleSetId: r.rule_set_id,
+    flags: flags.get(r.date),
   }));
   return rankQueue(
     inputs,

@@ -2,13 +2,14 @@ import { AuthError, requireRole, requireSession } from "@/lib/auth/session";
 import { authenticateRequest, requireRequestRole } from "@/lib/auth/tokens";
 import { db } from "@/lib/db/knex";
 import { handleRouteError, json } from "@/lib/http/respond";
-import { anomaliesInRange } from "@/lib/anomalies/server/queries";
+import { anomaliesInRange, weakTurbulenceForSite } from "@/lib/anomalies/server/queries";
 import { siteIdSchema } from "@/features/sites/schemas";
 import { anomalyRangeSchema } from "@/features/anomalies/schemas";
 
 type Context = { params: Promise<{ siteId: string }> };
 
-// GET /api/sites/:siteId/anomalies?from=&to= - anomalies of evenings in a local-date range, with each evening's current label
+// GET /api/sites/:siteId/anomalies?from=&to=[&include=weak-turbulence] - anomalies of evenings in a local-date range, with each evening's current label
+// (and, when asked, the nights with fluxes under weak turbulence)
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
     // a script sends an API token (Bearer), a browser its session cookie
@@ -24,6 +25,22 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
     const params = new URL(request.url).searchParams;
     const range = anomalyRangeSchema.parse({ from: params.get("from"), to: params.get("to") });
     const rows = await anomaliesInRange(site.id, range.from ?? null, range.to ?? null);
+    const weak = params.getAll("include").includes("weak-turbulence")
+      ? {
+          weakTurbulence: (
+            await weakTurbulenceForSite(site.id, { from: range.from, to: range.to }, { limit: 100_000 })
+          ).evenings
+            .map((w) => ({
+              eveningDate: w.eveningDate,
+              label: w.label,
+              fluxSeries: w.fluxSeries,
+              thresholdMs: w.thresholdMs,
+              weakPeriods: w.weakPeriods,
+              nightPeriods: w.nightPeriods,
+            }))
+            .reverse(),
+        }
+      : {};
     return json({
       anomalies: rows.map((a) => ({
         series: a.series,
@@ -34,6 +51,7 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
         eveningDate: a.eveningDate,
         label: a.label,
       })),
+      ...weak,
     });
   } catch (err) {
     return handleRouteError(err);
