@@ -6,12 +6,14 @@ import type {
   Label,
   QueueItem,
 } from "@/features/review/schemas";
+import type { AnomalyMark, WeakMark } from "@/features/review/flags";
 
 /** Query keys of the review feature; invalidate `reviewKeys.site(siteId)` after a label change. */
 export const reviewKeys = {
   site: (siteId: number) => ["review", siteId] as const,
   evenings: (siteId: number, range: DateRange) => ["review", siteId, "evenings", range.from, range.to] as const,
   queue: (siteId: number, range: DateRange) => ["review", siteId, "queue", range.from, range.to] as const,
+  anomalies: (siteId: number, range: DateRange) => ["review", siteId, "anomalies", range.from, range.to] as const,
 };
 
 async function getJson<T>(url: string): Promise<T> {
@@ -29,6 +31,20 @@ export function eveningsOptions(siteId: number, range: DateRange) {
     queryKey: reviewKeys.evenings(siteId, range),
     queryFn: async () =>
       (await getJson<{ evenings: EveningSummary[] }>(`/api/sites/${siteId}/evenings?from=${range.from}&to=${range.to}`)).evenings,
+    staleTime: 60_000,
+  });
+}
+
+/** Anomalies and weak-turbulence nights of a period, from GET /api/sites/:id/anomalies (calendar markers). */
+export function anomaliesOptions(siteId: number, range: DateRange) {
+  return queryOptions({
+    queryKey: reviewKeys.anomalies(siteId, range),
+    queryFn: async () => {
+      const body = await getJson<{ anomalies: AnomalyMark[]; weakTurbulence?: WeakMark[] }>(
+        `/api/sites/${siteId}/anomalies?from=${range.from}&to=${range.to}&include=weak-turbulence`,
+      );
+      return { anomalies: body.anomalies, weak: body.weakTurbulence ?? [] };
+    },
     staleTime: 60_000,
   });
 }

@@ -5,7 +5,16 @@ import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-quer
 import { useEffect, useMemo, useRef, useState, type KeyboardEvent } from "react";
 import { LABEL_META, LABEL_ORDER } from "@/lib/ui/label-badge";
 import type { EveningSummary, Label } from "@/features/review/schemas";
-import { eveningsOptions } from "@/features/review/queries";
+import { anomaliesOptions, eveningsOptions } from "@/features/review/queries";
+import {
+  ANOMALY_GLYPH,
+  WEAK_GLYPH,
+  describeAnomalies,
+  describeFlags,
+  describeWeak,
+  flagsByDate,
+  type EveningFlags,
+} from "@/features/review/flags";
 import {
   addMonths,
   dayTitle,
@@ -37,12 +46,14 @@ function passes(e: EveningSummary, f: Filters): boolean {
   return true;
 }
 
-function describe(date: string, e: EveningSummary | undefined, shown: boolean): string {
+function describe(date: string, e: EveningSummary | undefined, shown: boolean, flags: EveningFlags | undefined): string {
   if (!e) return `${dayTitle(date)}: no evening`;
   const parts = [`${dayTitle(date)}: ${LABEL_META[e.label].name}`];
   if (e.source === "override") parts.push(`overridden, automatic label ${LABEL_META[e.autoLabel].name}`);
   if (e.reviewed) parts.push("reviewed");
   if (e.label === "unclassified" && e.reasons[0]) parts.push(e.reasons[0]);
+  const flagged = describeFlags(flags);
+  if (flagged) parts.push(flagged);
   if (!shown) parts.push("hidden by the filters");
   return parts.join("; ");
 }
@@ -74,6 +85,12 @@ export function CalendarView({
   const query = useQuery({ ...eveningsOptions(siteId, range), placeholderData: keepPreviousData });
   const evenings = query.data;
   const byDate = useMemo(() => new Map((evenings ?? []).map((e) => [e.date, e])), [evenings]);
+  // Markers come from the anomalies endpoint, paged like the evenings; the calendar works without them.
+  const flagQuery = useQuery({ ...anomaliesOptions(siteId, range), placeholderData: keepPreviousData });
+  const flags = useMemo(
+    () => flagsByDate(flagQuery.data?.anomalies ?? [], flagQuery.data?.weak ?? []),
+    [flagQuery.data],
+  );
 
   // Keep the address in step (shareable, survives reload) without a navigation.
   useEffect(() => {
@@ -86,7 +103,11 @@ export function CalendarView({
   // Paging feels instant when the neighbours are already in the cache.
   useEffect(() => {
     const step = view === "month" ? 1 : 12;
-    for (const d of [-step, step]) void queryClient.prefetchQuery(eveningsOptions(siteId, rangeOf(view, addMonths(month, d))));
+    for (const d of [-step, step]) {
+      const r = rangeOf(view, addMonths(month, d));
+      void queryClient.prefetchQuery(eveningsOptions(siteId, r));
+      void queryClient.prefetchQuery(anomaliesOptions(siteId, r));
+    }
   }, [month, view, siteId, queryClient]);
 
   // The first day with an evening in the shown range is the tab stop while the chosen one is out of it.
@@ -122,6 +143,9 @@ export function CalendarView({
   }, [evenings]);
   const overridden = (evenings ?? []).filter((e) => e.source === "override").length;
   const reviewed = (evenings ?? []).filter((e) => e.reviewed).length;
+  const inShown = [...flags.keys()].filter((d) => d >= range.from && d <= range.to && byDate.has(d));
+  const anomalyDays = inShown.filter((d) => flags.get(d)!.anomalies.length > 0).length;
+  const weakDays = inShown.filter((d) => flags.get(d)!.weak !== null).length;
 
   const title = view === "month" ? monthTitle(month) : month.slice(0, 4);
   const detailDate = hoverDate ?? tabDate;
@@ -130,12 +154,14 @@ export function CalendarView({
   const cellProps = (date: string) => {
     const e = byDate.get(date);
     const shown = e ? passes(e, filters) : false;
+    const f = e ? flags.get(date) : undefined;
     return {
       e,
       shown,
+      flags: f,
       tabIndex: date === tabDate ? 0 : -1,
       "data-date": date,
-      "aria-label": describe(date, e, shown),
+      "aria-label": describe(date, e, shown, f),
       onFocus: () => setFocusDate(date),
       onMouseEnter: () => setHoverDate(date),
       onMouseLeave: () => setHoverDate(null),
@@ -178,6 +204,11 @@ export function CalendarView({
 
       <FilterBar filters={filters} setFilters={setFilters} counts={counts} overridden={overridden} reviewed={reviewed} total={evenings?.length ?? 0} />
 
+      {flagQuery.isError ? (
+        <p role="status" className="text-sm text-ink-muted">
+          The anomaly markers could not be loaded ({flagQuery.error.message}); the labels below are complete.
+        </p>
+      ) : null}
       {query.isError ? (
         <p role="alert" className="text-sm text-red-700 dark:text-red-300">
           The evenings could not be loaded: {query.error.message}
@@ -206,6 +237,14 @@ export function CalendarView({
             <span>
               <span aria-hidden="true">✓</span> reviewed
             </span>
+            <span>
+              <span aria-hidden="true">{ANOMALY_GLYPH}</span> anomalies: a trace-gas or flux excursion
+              {flagQuery.data ? ` (${anomalyDays} evening${anomalyDays === 1 ? "" : "s"})` : ""}
+            </span>
+            <span>
+              <span aria-hidden="true">{WEAK_GLYPH}</span> weak turbulence: night fluxes under the u* threshold
+              {flagQuery.data ? ` (${weakDays})` : ""}
+            </span>
             <span>dashed day: no evening stored</span>
             <span>U: unclassified (hover or focus for the reason)</span>
           </p>
@@ -213,7 +252,7 @@ export function CalendarView({
             Keys: arrows move by day and week, Home/End to the week&apos;s ends, Page Up/Down by month, Enter opens the evening.
           </p>
         </div>
-        <DayDetail siteId={siteId} date={detailDate} evening={detail} />
+        <DayDetail siteId={siteId} date={detailDate} evening={detail} flags={detail ? flags.get(detailDate) : undefined} />
       </div>
     </div>
   );
@@ -222,6 +261,7 @@ export function CalendarView({
 type CellProps = {
   e: EveningSummary | undefined;
   shown: boolean;
+  flags: EveningFlags | undefined;
   tabIndex: number;
   "data-date": string;
   "aria-label": string;
@@ -339,7 +379,19 @@ function MonthGrid({ siteId, month, cellProps }: { siteId: number; month: string
   );
 }
 
-function DayCell({ siteId, date, e, shown, "aria-label": description, ...rest }: CellProps & { siteId: number; date: string }) {
+function FlagGlyphs({ flags }: { flags: EveningFlags | undefined }) {
+  if (!flags) return null;
+  const a = describeAnomalies(flags.anomalies);
+  const w = describeWeak(flags.weak);
+  return (
+    <>
+      {a ? <span title={a}>{ANOMALY_GLYPH}</span> : null}
+      {w ? <span title={w}>{WEAK_GLYPH}</span> : null}
+    </>
+  );
+}
+
+function DayCell({ siteId, date, e, shown, flags, "aria-label": description, ...rest }: CellProps & { siteId: number; date: string }) {
   const day = Number(date.slice(8, 10));
   // The name comes from the content (visible day number hidden, full description for readers), so
   // what sighted and screen-reader users get agrees.
@@ -367,6 +419,7 @@ function DayCell({ siteId, date, e, shown, "aria-label": description, ...rest }:
       <span aria-hidden="true" className="flex items-center justify-between text-xs tabular-nums">
         <span className="font-medium text-ink">{day}</span>
         <span aria-hidden="true" className="flex gap-1 text-ink-muted">
+          <FlagGlyphs flags={flags} />
           {e.source === "override" ? <span title="overridden by a person">✎</span> : null}
           {e.reviewed ? <span title="reviewed">✓</span> : null}
         </span>
@@ -437,17 +490,39 @@ function YearGrid({
   );
 }
 
-function MiniCell({ siteId, e, shown, ...rest }: CellProps & { siteId: number; date: string }) {
+function MiniCell({ siteId, e, shown, flags, ...rest }: CellProps & { siteId: number; date: string }) {
   const box = "block aspect-square w-full rounded-[3px]";
   if (!e) return <div {...rest} className={`${box} bg-surface-sunken`} />;
+  // One corner mark, anomalies before weak turbulence; the cell's name and the side panel say which.
+  const mark = flags?.anomalies.length ? ANOMALY_GLYPH : flags?.weak ? WEAK_GLYPH : null;
   return (
-    <Link href={`/sites/${siteId}/evenings/${e.id}`} {...rest} className={`${box} ${shown ? "" : "opacity-25"}`}>
+    <Link href={`/sites/${siteId}/evenings/${e.id}`} {...rest} className={`relative ${box} ${shown ? "" : "opacity-25"}`}>
       <Chip label={e.label} overridden={e.source === "override"} size="sm" />
+      {mark ? (
+        <span
+          aria-hidden="true"
+          className="absolute -top-1 -right-1 grid size-2.5 place-items-center rounded-full bg-surface-raised font-mono text-[7px] leading-none text-ink ring-1 ring-ink"
+        >
+          {mark}
+        </span>
+      ) : null}
     </Link>
   );
 }
 
-function DayDetail({ siteId, date, evening }: { siteId: number; date: string; evening: EveningSummary | undefined }) {
+function DayDetail({
+  siteId,
+  date,
+  evening,
+  flags,
+}: {
+  siteId: number;
+  date: string;
+  evening: EveningSummary | undefined;
+  flags: EveningFlags | undefined;
+}) {
+  const anomalies = flags ? describeAnomalies(flags.anomalies) : null;
+  const weak = flags ? describeWeak(flags.weak) : null;
   return (
     <aside aria-label="Selected day" className="card h-fit space-y-3 p-4 text-sm lg:sticky lg:top-6">
       <h3 className="font-semibold">{dayTitle(date)}</h3>
@@ -473,6 +548,22 @@ function DayDetail({ siteId, date, evening }: { siteId: number; date: string; ev
               {evening.reasons.slice(0, 3).map((r) => (
                 <li key={r}>{r}</li>
               ))}
+            </ul>
+          ) : null}
+          {anomalies || weak ? (
+            <ul aria-label="Flags of this evening" className="space-y-1 text-xs">
+              {anomalies ? (
+                <li className="flex gap-1.5">
+                  <span aria-hidden="true">{ANOMALY_GLYPH}</span>
+                  <span>{anomalies}</span>
+                </li>
+              ) : null}
+              {weak ? (
+                <li className="flex gap-1.5">
+                  <span aria-hidden="true">{WEAK_GLYPH}</span>
+                  <span>{weak}</span>
+                </li>
+              ) : null}
             </ul>
           ) : null}
           <p className="text-xs text-ink-muted">
