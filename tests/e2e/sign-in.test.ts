@@ -82,7 +82,8 @@ describe("signing in as the demo analyst", () => {
     const { page } = browser;
     await page.setViewportSize({ width: 1280, height: 800 });
     await page.goto(`${app.url}/sites`);
-    await page.getByRole("button", { name: /^Account:/ }).click();
+    // The account button is named by its visible text first (the signed-in analyst), then its purpose.
+    await page.getByRole("button", { name: /^Demo Analyst \(invented\).*account menu$/ }).click();
     await page.getByRole("button", { name: "Sign out" }).click();
     await page.waitForURL(/\/sign-in$/);
 

@@ -26,10 +26,11 @@ export function GroupSwitcher({ memberships, active }: { memberships: Membership
       <button
         type="button"
         {...buttonProps}
-        aria-label={`Group: ${active.groupName}. Switch group`}
         className="flex w-full items-center justify-between gap-2 rounded-lg border border-line px-3 py-2 hover:bg-surface-sunken"
       >
         {summary}
+        {/* named by its visible text first (axe label-content-name-mismatch) */}
+        <span className="sr-only">, switch group</span>
         <span
           aria-hidden="true"
           className={`text-ink-muted transition-transform ${open ? "rotate-180" : ""}`}

@@ -29,7 +29,6 @@ export function UserMenu({
       <button
         type="button"
         {...buttonProps}
-        aria-label={`Account: ${user.displayName}`}
         className="flex w-full items-center gap-2.5 rounded-lg px-2 py-1.5 text-left hover:bg-surface-sunken"
       >
         <span
@@ -38,10 +37,13 @@ export function UserMenu({
         >
           {initials(user.displayName)}
         </span>
-        <span className="hidden min-w-0 sm:block">
+        {/* The name comes from the visible text (axe label-content-name-mismatch): on narrow
+            screens, where only the initials show, the same words stay for screen readers. */}
+        <span className="sr-only min-w-0 sm:not-sr-only sm:block">
           <span className="block truncate text-sm font-medium text-ink">{user.displayName}</span>
           <span className="block truncate text-xs text-ink-muted">{user.email}</span>
         </span>
+        <span className="sr-only">, account menu</span>
       </button>
       <div
         {...panelProps}
