@@ -29,6 +29,43 @@ const defaultMessages: Record<AuthErrorCode, string> = {
   not_found: "Not found.",
 };
 
+/**
+ * A cookie-authenticated request sent from another site (its Origin is neither APP_URL nor the
+ * Host it was sent to). Route handlers answer 403; the cookie alone must not let another page
+ * change data on a person's behalf.
+ */
+export class CrossOriginError extends Error {
+  constructor(readonly origin: string) {
+    super(
+      `Refused: this request came from another site (Origin ${origin.slice(0, 100)}). Use the app itself, or send an API token (Authorization: Bearer) from scripts.`,
+    );
+    this.name = "CrossOriginError";
+  }
+}
+
+/**
+ * Whether a request's Origin header may ride on the session cookie: absent (same-origin
+ * navigation, non-browser clients), the origin of APP_URL, or the same host the request was
+ * sent to. "null" (sandboxed frames, some redirects) is refused.
+ */
+export function originAllowed(origin: string | null, host: string | null): boolean {
+  if (origin === null) return true;
+  let parsed: URL;
+  try {
+    parsed = new URL(origin);
+  } catch {
+    return false;
+  }
+  if (parsed.origin === new URL(env.APP_URL).origin) return true;
+  return host !== null && parsed.host === host.trim().toLowerCase();
+}
+
+/** Throws CrossOriginError when a cookie-carrying request's Origin is another site's. */
+export function assertSameOrigin(requestHeaders: Headers): void {
+  const origin = requestHeaders.get("origin");
+  if (!originAllowed(origin, requestHeaders.get("host"))) throw new CrossOriginError(origin ?? "");
+}
+
 /** Name of the cookie holding the id of the group the person is working in. */
 export const ACTIVE_GROUP_COOKIE = "gloaming_group";
 
@@ -46,7 +83,8 @@ async function trySetCookie(name: string, value: string, attributes: CookieAttrs
 /**
  * The signed-in person of this request, or null. Cached per request. A request with
  * `Authorization: Bearer <token>` (scripts) is judged by its personal API token alone; its
- * sessionId is then "token:<id>".
+ * sessionId is then "token:<id>". A cookie sent with another site's Origin throws
+ * CrossOriginError (bearer requests are exempt: no browser attaches a token by itself).
  */
 export const getCurrentSession = cache(async (): Promise<CurrentSession | null> => {
   const authorization = (await headers()).get("authorization");
@@ -58,6 +96,7 @@ export const getCurrentSession = cache(async (): Promise<CurrentSession | null> 
   }
   const sessionId = (await cookies()).get(lucia.sessionCookieName)?.value;
   if (!sessionId) return null;
+  assertSameOrigin(await headers());
   const { session, user } = await lucia.validateSession(sessionId);
   if (!session) {
     const blank = lucia.createBlankSessionCookie();

@@ -2,7 +2,7 @@ import "server-only";
 import { randomBytes } from "node:crypto";
 import { lucia } from "@/lib/auth/lucia";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
-import { AuthError, type SessionUser } from "@/lib/auth/session";
+import { AuthError, assertSameOrigin, type SessionUser } from "@/lib/auth/session";
 import { TOKEN_PREFIX, bearerSecret, hashTokenSecret, userForTokenSecret } from "@/lib/auth/token-store";
 import { db } from "@/lib/db/knex";
 
@@ -93,6 +93,7 @@ export async function authenticateRequest(request: Request): Promise<RequestUser
   }
   const sessionId = lucia.readSessionCookie(request.headers.get("cookie") ?? "");
   if (!sessionId) return null;
+  assertSameOrigin(request.headers);
   const { session, user } = await lucia.validateSession(sessionId);
   if (!session) return null;
   return { user: { id: user.id, email: user.email, displayName: user.displayName }, via: "session" };

@@ -1,6 +1,6 @@
 import "server-only";
 import { ZodError, flattenError } from "zod";
-import { AuthError } from "@/lib/auth/session";
+import { AuthError, CrossOriginError } from "@/lib/auth/session";
 import {
   DATABASE_RETRY_AFTER_S,
   DATABASE_UNAVAILABLE_MESSAGE,
@@ -50,6 +50,12 @@ export function handleRouteError(err: unknown): Response {
   if (err instanceof BadJsonError) {
     return errorResponse(400, "bad_json", err.message);
   }
+  if (err instanceof BodyTooLargeError) {
+    return errorResponse(413, "too_large", err.message);
+  }
+  if (err instanceof CrossOriginError) {
+    return errorResponse(403, "cross_origin", err.message);
+  }
   if (err instanceof AuthError) {
     const [status, message] = AUTH_ANSWERS[err.code];
     return errorResponse(status, err.code, message);
@@ -67,9 +73,49 @@ export function handleRouteError(err: unknown): Response {
 /** A request body that is not JSON. */
 export class BadJsonError extends Error {}
 
-/** Parses a JSON request body; a malformed body becomes a 400 through handleRouteError. */
-export async function readJson(request: Request): Promise<unknown> {
-  const text = await request.text();
+/** A request body above the limit; handleRouteError answers 413. */
+export class BodyTooLargeError extends Error {
+  constructor(readonly limitBytes: number) {
+    super(`The request body is larger than the limit of ${Math.round(limitBytes / 1024)} KiB.`);
+    this.name = "BodyTooLargeError";
+  }
+}
+
+/** Largest JSON body a route handler reads, bytes (1 MiB; uploads have their own limit). */
+export const JSON_BODY_LIMIT = 1024 * 1024;
+
+/**
+ * Reads a request body as UTF-8 text, refusing it with BodyTooLargeError once it exceeds
+ * `limitBytes`: first by its declared Content-Length, then by counting while reading (a chunked
+ * or lying sender is cut off without the rest being buffered).
+ */
+export async function readLimitedText(request: Request, limitBytes: number = JSON_BODY_LIMIT): Promise<string> {
+  const declared = Number(request.headers.get("content-length") ?? NaN);
+  if (Number.isFinite(declared) && declared > limitBytes) throw new BodyTooLargeError(limitBytes);
+  if (!request.body) return "";
+  const reader = request.body.getReader();
+  const decoder = new TextDecoder();
+  let size = 0;
+  let text = "";
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > limitBytes) {
+      await reader.cancel().catch(() => undefined);
+      throw new BodyTooLargeError(limitBytes);
+    }
+    text += decoder.decode(value, { stream: true });
+  }
+  return text + decoder.decode();
+}
+
+/**
+ * Parses a JSON request body of at most `limitBytes` (default 1 MiB); a malformed body becomes
+ * a 400 and an oversized one a 413 through handleRouteError.
+ */
+export async function readJson(request: Request, limitBytes: number = JSON_BODY_LIMIT): Promise<unknown> {
+  const text = await readLimitedText(request, limitBytes);
   if (text.trim() === "") return {};
   try {
     return JSON.parse(text) as unknown;
