@@ -3,6 +3,7 @@ import type { Knex } from "knex";
 import { classifyTable, emptyMetrics, type EveningResult, type Label } from "@/lib/classify/evenings";
 import type { SiteParams } from "@/lib/classify/site";
 import { db } from "@/lib/db/knex";
+import type { InsertRow } from "@/lib/db/tables";
 import { loadHalfHours } from "@/lib/evenings/load";
 import { ensureActiveRuleSet, type StoredRuleSet } from "@/lib/evenings/rulesets";
 import { localDateOf, localMidnightUtcMs } from "@/lib/physics/sun";
@@ -272,7 +273,7 @@ async function recomputeIn(
         rule_set_version: ruleSet.version,
       });
     }
-    if (events.length > 0) await trx("evening_events").insert(events);
+    if (events.length > 0) await trx("evening_events").insert(events as Array<InsertRow<"evening_events">>);
     done += batch.length;
     await options.onProgress?.(done, total);
   }

@@ -1,6 +1,7 @@
 import "server-only";
 import { DEFAULT_RULE_SET, type RuleSet } from "@/lib/classify/rules";
 import { db } from "@/lib/db/knex";
+import type { EveningLabel, InsertRow, UstarThresholdRow } from "@/lib/db/tables";
 import { DayGrid, detectOnGrid, type EveningRef, type SeriesInput } from "@/lib/anomalies/detect";
 import { anomalySettingsOf } from "@/lib/anomalies/settings";
 import { loadHalfHours, listSiteSeries } from "@/lib/evenings/load";
@@ -36,7 +37,7 @@ type EveningRow = {
   id: number;
   local_date: string;
   sunset_utc: Date | null;
-  final_label: string;
+  final_label: EveningLabel;
 };
 
 const DAY_MS = 86_400_000;
@@ -75,11 +76,11 @@ export async function runAnomalyDetection(
 
   const q = db("evenings")
     .where({ site_id: siteId })
-    .select("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS local_date"), "sunset_utc", "final_label")
+    .select<EveningRow[]>("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS local_date"), "sunset_utc", "final_label")
     .orderBy("local_date");
   if (range.from) q.andWhere("local_date", ">=", range.from);
   if (range.to) q.andWhere("local_date", "<=", range.to);
-  const evenings = (await q) as EveningRow[];
+  const evenings = await q;
   const empty: DetectionResult = {
     evenings: 0,
     series: [],
@@ -124,8 +125,8 @@ export async function runAnomalyDetection(
   const ustar = table.columns.USTAR;
   const flux = table.columns[FLUX_SERIES];
   const ta = table.columns.TA;
-  let thresholdRows: Array<Record<string, unknown>> = [];
-  let weakRows: Array<Record<string, unknown>> = [];
+  let thresholdRows: Array<InsertRow<"ustar_thresholds">> = [];
+  let weakRows: Array<InsertRow<"weak_turbulence">> = [];
   if (ustar && flux && ta) {
     const night = nightMask(
       table.startMs,
@@ -150,7 +151,7 @@ export async function runAnomalyDetection(
     const annual = new Map(u.annual.map((a) => [a.seasonYear, a.thresholdMs]));
     const rowOf = (
       seasonYear: number,
-      season: string,
+      season: UstarThresholdRow["season"],
       thresholdMs: number | null,
       unc: {
         resamples: number;

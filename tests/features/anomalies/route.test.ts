@@ -29,6 +29,7 @@ describe("GET /api/sites/:siteId/anomalies", () => {
       margins: "{}",
       metrics: "{}",
     });
+    if (eveningId === undefined) throw new Error("the evening insert returned no id");
     await db("anomalies").insert({
       site_id: siteId,
       evening_id: eveningId,

@@ -119,7 +119,7 @@ describe("rule sets: versions, what-if preview, activation", () => {
 
     const outcome = await runOnce({ handlers: rulesJobHandlers, progressMs: 0 });
     expect(outcome).toMatchObject({ jobId, status: "done" });
-    const job: { status: string; progress_done: number; progress_total: number; progress_unit: string } = await db("jobs").where({ id: jobId }).first();
+    const job = (await db("jobs").where({ id: jobId }).first()) as { status: string; progress_done: number; progress_total: number; progress_unit: string };
     expect(job.status).toBe("done");
     expect(Number(job.progress_total)).toBeGreaterThan(0);
     expect(Number(job.progress_done)).toBe(Number(job.progress_total));

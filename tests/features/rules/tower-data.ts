@@ -3,6 +3,7 @@
  * lib/evenings/recompute, so rule tests start from evenings as the product stores them.
  */
 import { db } from "@/lib/db/knex";
+import type { InsertRow } from "@/lib/db/tables";
 import { MEASURE_COLUMNS } from "@/lib/evenings/load";
 import { recomputeEvenings } from "@/lib/evenings/recompute";
 import { ensureActiveRuleSet } from "@/lib/evenings/rulesets";
@@ -34,7 +35,7 @@ export async function towerWithEvenings(site: SiteRow, startDate: string, days: 
     }
     rows.push(row);
   }
-  for (let i = 0; i < rows.length; i += 1000) await db("half_hours").insert(rows.slice(i, i + 1000));
+  for (let i = 0; i < rows.length; i += 1000) await db("half_hours").insert(rows.slice(i, i + 1000) as Array<InsertRow<"half_hours">>);
   await ensureActiveRuleSet(site.id);
   const last = new Date(Date.parse(`${startDate}T00:00:00Z`) + (days - 1) * 86_400_000).toISOString().slice(0, 10);
   await recomputeEvenings(site.id, startDate, last);

@@ -1,5 +1,6 @@
 import type { SiteParams } from "@/lib/classify/site";
 import { db } from "@/lib/db/knex";
+import type { InsertRow } from "@/lib/db/tables";
 import { MEASURE_COLUMNS } from "@/lib/evenings/load";
 import type { HalfHourTable, KnownVariable } from "@/lib/series/types";
 import type { SiteRow } from "@/tests/support/db";
@@ -45,6 +46,6 @@ export async function storeTable(siteId: number, table: HalfHourTable, tracers: 
       }
       rows.push(row);
     }
-    await db("half_hours").insert(rows);
+    await db("half_hours").insert(rows as Array<InsertRow<"half_hours">>);
   }
 }
