@@ -37,8 +37,8 @@ const AUTH_ANSWERS = {
 
 /**
  * Maps anything a route handler throws to an answer: validation 422, no session 401,
- * role too low 403, unknown or hidden 404, database unreachable 503 with Retry-After,
- * everything else 500 with the cause logged here
+ * role too low or another site's Origin 403, unknown or hidden 404, body too large 413,
+ * database unreachable 503 with Retry-After, everything else 500 with the cause logged here
  * and never sent (database messages stay on the server).
  */
 export function handleRouteError(err: unknown): Response {
@@ -89,7 +89,10 @@ export const JSON_BODY_LIMIT = 1024 * 1024;
  * `limitBytes`: first by its declared Content-Length, then by counting while reading (a chunked
  * or lying sender is cut off without the rest being buffered).
  */
-export async function readLimitedText(request: Request, limitBytes: number = JSON_BODY_LIMIT): Promise<string> {
+export async function readLimitedText(
+  request: Request,
+  limitBytes: number = JSON_BODY_LIMIT,
+): Promise<string> {
   const declared = Number(request.headers.get("content-length") ?? NaN);
   if (Number.isFinite(declared) && declared > limitBytes) throw new BodyTooLargeError(limitBytes);
   if (!request.body) return "";
