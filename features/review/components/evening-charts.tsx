@@ -6,6 +6,8 @@ import { scaleLinear } from "@visx/scale";
 import { LinePath } from "@visx/shape";
 import { useEffect, useId, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from "react";
 import type { EveningSeries, SeriesColumn, WindowSpan } from "@/features/review/schemas";
+import { ANOMALY_GLYPH, WEAK_GLYPH, kindWords } from "@/features/review/flags";
+import type { AnomalyKind } from "@/lib/anomalies/detect";
 
 /*
  * Small multiples of the evening window (4 h either side of sunset) sharing one time axis and
@@ -73,6 +75,44 @@ function yDomain(col: SeriesColumn): [number, number] {
   return [lo - (lo === 0 ? 0 : pad), hi + pad];
 }
 
+/** An anomaly drawn over its series: from the start of its first to the end of its last period. */
+export type ChartAnomaly = {
+  series: string;
+  kind: AnomalyKind;
+  startMs: number;
+  endMs: number;
+  peakScore: number;
+};
+
+/** The night's weak-turbulence flag: the u* threshold and the first and last weak period starts. */
+export type ChartWeakTurbulence = {
+  fluxSeries: string;
+  thresholdMs: number;
+  weakPeriods: number;
+  nightPeriods: number;
+  firstWeakMs: number | null;
+  lastWeakMs: number | null;
+};
+
+/** Diagonal hatching for anomaly spans: a texture as well as a tint, so colour is not the only cue. */
+function Hatch({ id }: { id: string }) {
+  return (
+    <defs>
+      <pattern id={id} width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
+        <rect width="6" height="6" className="fill-red-500/10 dark:fill-red-400/10" />
+        <line
+          x1="0"
+          x2="0"
+          y1="0"
+          y2="6"
+          className="stroke-red-700/60 dark:stroke-red-300/60"
+          strokeWidth="2"
+        />
+      </pattern>
+    </defs>
+  );
+}
+
 type Props = {
   series: EveningSeries;
   windows: WindowSpan[];
@@ -80,9 +120,23 @@ type Props = {
   sunsetMs: number | null;
   duskMs: number | null;
   utcOffsetHours: number;
+  anomalies?: ChartAnomaly[];
+  weak?: ChartWeakTurbulence | null;
 };
 
-export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utcOffsetHours }: Props) {
+const matches = (col: SeriesColumn, series: string) => col.key === series || col.name === series;
+
+export function EveningCharts({
+  series,
+  windows,
+  centreMs,
+  sunsetMs,
+  duskMs,
+  utcOffsetHours,
+  anomalies = [],
+  weak = null,
+}: Props) {
+  const hatchId = `hatch-${useId().replace(/:/g, "")}`;
   const { ref, width } = useWidth(720);
   const [cursor, setCursor] = useState<number | null>(null);
   const readoutId = useId();
@@ -103,7 +157,8 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
     const rect = ev.currentTarget.getBoundingClientRect();
     const t = x.invert(ev.clientX - rect.left);
     let best = 0;
-    for (let i = 1; i < n; i++) if (Math.abs(series.timeMs[i]! - t) < Math.abs(series.timeMs[best]! - t)) best = i;
+    for (let i = 1; i < n; i++)
+      if (Math.abs(series.timeMs[i]! - t) < Math.abs(series.timeMs[best]! - t)) best = i;
     setCursor(best);
   }
 
@@ -120,6 +175,24 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
   }
 
   const cursorMs = cursor === null ? null : series.timeMs[cursor]!;
+  const ustarCol = series.columns.find((c) => c.key === "USTAR");
+  // A flux period is weak when u* is under the night's threshold, between the first and last weak
+  // period the screen found (so daytime periods never count).
+  const weakAt = (i: number): boolean => {
+    if (!weak || weak.firstWeakMs === null || weak.lastWeakMs === null) return false;
+    const t = series.timeMs[i]!;
+    const half = (series.periodMinutes * 60_000) / 2;
+    const u = ustarCol?.values[i];
+    return (
+      t - half >= weak.firstWeakMs &&
+      t - half <= weak.lastWeakMs &&
+      u !== null &&
+      u !== undefined &&
+      u < weak.thresholdMs
+    );
+  };
+  const anomaliesAt = (col: SeriesColumn, ms: number) =>
+    anomalies.filter((a) => matches(col, a.series) && ms >= a.startMs && ms <= a.endMs);
   const markers = [
     sunsetMs !== null ? { ms: sunsetMs, label: "sunset", dash: undefined } : null,
     duskMs !== null ? { ms: duskMs, label: "civil dusk", dash: "4 3" } : null,
@@ -144,11 +217,47 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
         </span>
         <span className="inline-flex items-center gap-1.5">
           <svg aria-hidden="true" width="14" height="10">
-            <line x1="7" x2="7" y1="0" y2="10" className="stroke-ink" strokeWidth="1.5" strokeDasharray="3 2" />
+            <line
+              x1="7"
+              x2="7"
+              y1="0"
+              y2="10"
+              className="stroke-ink"
+              strokeWidth="1.5"
+              strokeDasharray="3 2"
+            />
           </svg>
           civil dusk
         </span>
-        <span>times: data clock (UTC{utcOffsetHours >= 0 ? "+" : "−"}{Math.abs(utcOffsetHours)})</span>
+        {anomalies.length ? (
+          <span className="inline-flex items-center gap-1.5">
+            <svg aria-hidden="true" width="14" height="10">
+              <Hatch id={`${hatchId}-legend`} />
+              <rect
+                width="14"
+                height="10"
+                rx="2"
+                fill={`url(#${hatchId}-legend)`}
+                className="stroke-ink"
+                strokeWidth="0.75"
+              />
+            </svg>
+            <span aria-hidden="true">{ANOMALY_GLYPH}</span> anomaly
+          </span>
+        ) : null}
+        {weak ? (
+          <span className="inline-flex items-center gap-1.5">
+            <svg aria-hidden="true" width="14" height="10">
+              <path d="M7 1 L13 9 L1 9 Z" className="fill-surface-raised stroke-ink" strokeWidth="1.25" />
+            </svg>
+            <span aria-hidden="true">{WEAK_GLYPH}</span> weak turbulence (u* under{" "}
+            {weak.thresholdMs.toFixed(2)} m/s, dashed on u*)
+          </span>
+        ) : null}
+        <span>
+          times: data clock (UTC{utcOffsetHours >= 0 ? "+" : "−"}
+          {Math.abs(utcOffsetHours)})
+        </span>
       </div>
 
       <div
@@ -169,29 +278,127 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
           const last = ci === series.columns.length - 1;
           const h = CHART_H + (last ? AXIS_H : 0);
           const innerH = CHART_H - MARGIN.top - MARGIN.bottom;
-          const y = scaleLinear<number>({ domain: yDomain(col), range: [innerH, 0], clamp: col.key === "ZL" });
+          const y = scaleLinear<number>({
+            domain: yDomain(col),
+            range: [innerH, 0],
+            clamp: col.key === "ZL",
+          });
           const pts = col.values.map((v, i) => ({ t: series.timeMs[i]!, v }));
           const hasData = col.values.some((v) => v !== null);
           const zeroVisible = y.domain()[0]! < 0 && y.domain()[1]! > 0;
+          const spans = anomalies.filter((a) => matches(col, a.series));
+          const isFlux = weak !== null && matches(col, weak.fluxSeries);
+          const thresholdLine = weak !== null && col.key === "USTAR" ? weak.thresholdMs : null;
+          const flagText = [
+            ...spans.map(
+              (a) =>
+                `${ANOMALY_GLYPH} ${kindWords(a.kind)} ${clock(a.startMs, utcOffsetHours)}–${clock(a.endMs, utcOffsetHours)}`,
+            ),
+            isFlux && weak
+              ? `${WEAK_GLYPH} ${weak.weakPeriods} of ${weak.nightPeriods} night half-hours under weak turbulence`
+              : null,
+          ].filter((t) => t !== null);
           return (
             <svg
               key={col.key}
               viewBox={`0 0 ${width} ${h}`}
               role="img"
-              aria-label={`${col.name} (${col.unit}) over the evening window`}
+              aria-label={`${col.name} (${col.unit}) over the evening window${flagText.length ? `; ${flagText.join("; ")}` : ""}${
+                thresholdLine !== null ? `; u* threshold ${thresholdLine.toFixed(2)} m/s` : ""
+              }`}
               className="block h-auto w-full text-ink"
             >
+              {spans.length ? <Hatch id={`${hatchId}-${ci}`} /> : null}
               <Group left={MARGIN.left} top={MARGIN.top}>
                 {windows.map((w) => (
-                  <rect key={w.name} x={x(w.startMs)} width={Math.max(0, x(w.endMs) - x(w.startMs))} y={0} height={innerH} className={WINDOW_FILL[w.name]} />
+                  <rect
+                    key={w.name}
+                    x={x(w.startMs)}
+                    width={Math.max(0, x(w.endMs) - x(w.startMs))}
+                    y={0}
+                    height={innerH}
+                    className={WINDOW_FILL[w.name]}
+                  />
                 ))}
                 {ticks.map((t) => (
-                  <line key={t} x1={x(t)} x2={x(t)} y1={0} y2={innerH} className="stroke-line" strokeWidth={1} />
+                  <line
+                    key={t}
+                    x1={x(t)}
+                    x2={x(t)}
+                    y1={0}
+                    y2={innerH}
+                    className="stroke-line"
+                    strokeWidth={1}
+                  />
                 ))}
-                {zeroVisible ? <line x1={0} x2={innerW} y1={y(0)} y2={y(0)} className="stroke-ink-muted" strokeWidth={0.75} strokeDasharray="2 2" /> : null}
+                {spans.map((a, ai) => {
+                  const from = Math.max(0, x(a.startMs));
+                  const to = Math.min(innerW, x(a.endMs));
+                  if (!(to > from)) return null;
+                  return (
+                    <g key={`${a.kind}-${a.startMs}`}>
+                      <rect
+                        x={from}
+                        width={to - from}
+                        y={0}
+                        height={innerH}
+                        fill={`url(#${hatchId}-${ci})`}
+                      />
+                      <text
+                        x={from + 3}
+                        y={innerH - 4 - ai * 11}
+                        className="fill-ink text-[10px] font-semibold"
+                      >
+                        {ANOMALY_GLYPH} {kindWords(a.kind)}
+                      </text>
+                    </g>
+                  );
+                })}
+                {thresholdLine !== null &&
+                thresholdLine >= y.domain()[0]! &&
+                thresholdLine <= y.domain()[1]! ? (
+                  <g>
+                    <line
+                      x1={0}
+                      x2={innerW}
+                      y1={y(thresholdLine)}
+                      y2={y(thresholdLine)}
+                      className="stroke-ink"
+                      strokeWidth={1}
+                      strokeDasharray="6 3"
+                    />
+                    <text
+                      x={innerW - 2}
+                      y={y(thresholdLine) - 3}
+                      textAnchor="end"
+                      className="fill-ink-muted text-[10px]"
+                    >
+                      u* threshold {thresholdLine.toFixed(2)}
+                    </text>
+                  </g>
+                ) : null}
+                {zeroVisible ? (
+                  <line
+                    x1={0}
+                    x2={innerW}
+                    y1={y(0)}
+                    y2={y(0)}
+                    className="stroke-ink-muted"
+                    strokeWidth={0.75}
+                    strokeDasharray="2 2"
+                  />
+                ) : null}
                 {markers.map((m) => (
                   <g key={m.label}>
-                    <line x1={x(m.ms)} x2={x(m.ms)} y1={0} y2={innerH} className="stroke-ink" strokeWidth={1.5} strokeDasharray={m.dash} />
+                    <line
+                      x1={x(m.ms)}
+                      x2={x(m.ms)}
+                      y1={0}
+                      y2={innerH}
+                      className="stroke-ink"
+                      strokeWidth={1.5}
+                      strokeDasharray={m.dash}
+                    />
                     {ci === 0 ? (
                       <text x={x(m.ms) + 4} y={10} className="fill-ink-muted text-[10px]">
                         {m.label}
@@ -211,37 +418,83 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
                   />
                 )}
                 {pts.map((d, i) =>
-                  d.v === null ? null : (
+                  d.v === null ? null : isFlux && weakAt(i) ? (
+                    // weak-turbulence periods of the flux: a triangle, so the shape says it, not the colour
+                    <path
+                      key={i}
+                      d={`M${x(d.t)} ${y(d.v) - 4.5} L${x(d.t) + 4} ${y(d.v) + 3} L${x(d.t) - 4} ${y(d.v) + 3} Z`}
+                      className="fill-surface-raised stroke-red-700 dark:stroke-red-300"
+                      strokeWidth={1.5}
+                    />
+                  ) : (
                     <circle
                       key={i}
                       cx={x(d.t)}
                       cy={y(d.v)}
                       r={col.circular ? 3 : 2}
-                      className={col.circular ? "fill-dusk-600 dark:fill-dusk-300" : "fill-surface-raised stroke-dusk-600 dark:stroke-dusk-300"}
+                      className={
+                        col.circular
+                          ? "fill-dusk-600 dark:fill-dusk-300"
+                          : "fill-surface-raised stroke-dusk-600 dark:stroke-dusk-300"
+                      }
                       strokeWidth={1.25}
                     />
                   ),
                 )}
                 {!hasData ? (
-                  <text x={innerW / 2} y={innerH / 2} textAnchor="middle" className="fill-ink-muted text-[11px]">
+                  <text
+                    x={innerW / 2}
+                    y={innerH / 2}
+                    textAnchor="middle"
+                    className="fill-ink-muted text-[11px]"
+                  >
                     no data in this window
                   </text>
                 ) : null}
-                {cursorMs !== null ? <line x1={x(cursorMs)} x2={x(cursorMs)} y1={0} y2={innerH} className="stroke-red-600 dark:stroke-red-400" strokeWidth={1} /> : null}
+                {cursorMs !== null ? (
+                  <line
+                    x1={x(cursorMs)}
+                    x2={x(cursorMs)}
+                    y1={0}
+                    y2={innerH}
+                    className="stroke-red-600 dark:stroke-red-400"
+                    strokeWidth={1}
+                  />
+                ) : null}
                 <AxisLeft
                   scale={y}
                   numTicks={3}
                   tickValues={col.circular ? [0, 90, 180, 270, 360] : undefined}
-                  tickFormat={(v) => (col.circular ? (["N", "E", "S", "W", "N"][Number(v) / 90] ?? String(v)) : y.tickFormat(3)(Number(v)))}
+                  tickFormat={(v) =>
+                    col.circular
+                      ? (["N", "E", "S", "W", "N"][Number(v) / 90] ?? String(v))
+                      : y.tickFormat(3)(Number(v))
+                  }
                   stroke="currentColor"
                   tickStroke="currentColor"
                   tickLength={3}
-                  tickLabelProps={{ className: "fill-ink-muted text-[10px]", textAnchor: "end", dx: -2, dy: 3 }}
+                  tickLabelProps={{
+                    className: "fill-ink-muted text-[10px]",
+                    textAnchor: "end",
+                    dx: -2,
+                    dy: 3,
+                  }}
                   strokeWidth={0.5}
                 />
-                <text x={6} y={3} dominantBaseline="hanging" className="fill-ink stroke-surface-raised text-[10px] font-semibold" strokeWidth={3} paintOrder="stroke">
+                <text
+                  x={6}
+                  y={3}
+                  dominantBaseline="hanging"
+                  className="fill-ink stroke-surface-raised text-[10px] font-semibold"
+                  strokeWidth={3}
+                  paintOrder="stroke"
+                >
                   {col.name}
-                  {col.unit === "1" ? "" : <tspan className="fill-ink-muted font-normal"> · {col.unit}</tspan>}
+                  {col.unit === "1" ? (
+                    ""
+                  ) : (
+                    <tspan className="fill-ink-muted font-normal"> · {col.unit}</tspan>
+                  )}
                 </text>
                 {last ? (
                   <AxisBottom
@@ -256,16 +509,28 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
                     tickLabelProps={{ className: "fill-ink-muted text-[10px]", textAnchor: "middle" }}
                   />
                 ) : null}
-                <rect width={innerW} height={innerH} fill="transparent" onMouseMove={pick} onMouseLeave={() => setCursor(null)} />
+                <rect
+                  width={innerW}
+                  height={innerH}
+                  fill="transparent"
+                  onMouseMove={pick}
+                  onMouseLeave={() => setCursor(null)}
+                />
               </Group>
             </svg>
           );
         })}
       </div>
 
-      <div id={readoutId} aria-live="polite" className="min-h-16 rounded-lg border border-line bg-surface-sunken px-3 py-2 text-xs">
+      <div
+        id={readoutId}
+        aria-live="polite"
+        className="min-h-16 rounded-lg border border-line bg-surface-sunken px-3 py-2 text-xs"
+      >
         {cursor === null ? (
-          <span className="text-ink-muted">Point at a chart, or focus the charts and use ← →, to read the values of one half-hour.</span>
+          <span className="text-ink-muted">
+            Point at a chart, or focus the charts and use ← →, to read the values of one half-hour.
+          </span>
         ) : (
           <>
             <span className="mr-3 font-semibold">
@@ -274,7 +539,17 @@ export function EveningCharts({ series, windows, centreMs, sunsetMs, duskMs, utc
             <span className="inline-flex flex-wrap gap-x-4 gap-y-1">
               {series.columns.map((c) => (
                 <span key={c.key}>
-                  <span className="text-ink-muted">{c.name}</span> <span className="font-mono">{fmt(c.values[cursor], c.unit)}</span>
+                  <span className="text-ink-muted">{c.name}</span>{" "}
+                  <span className="font-mono">{fmt(c.values[cursor], c.unit)}</span>
+                  {anomaliesAt(c, cursorMs!).map((a) => (
+                    <span key={a.startMs}>
+                      {" "}
+                      {ANOMALY_GLYPH} {kindWords(a.kind)}
+                    </span>
+                  ))}
+                  {weak && matches(c, weak.fluxSeries) && weakAt(cursor) ? (
+                    <span> {WEAK_GLYPH} weak turbulence</span>
+                  ) : null}
                 </span>
               ))}
             </span>

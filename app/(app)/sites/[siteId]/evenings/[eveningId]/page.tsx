@@ -102,6 +102,25 @@ export default async function EveningPage({ params }: Props) {
               sunsetMs={e.sunsetUtc ? Date.parse(e.sunsetUtc) : null}
               duskMs={e.civilDuskUtc ? Date.parse(e.civilDuskUtc) : null}
               utcOffsetHours={site.utcOffsetHours}
+              anomalies={anomalies.map((a) => ({
+                series: a.series,
+                kind: a.kind,
+                startMs: Date.parse(a.start),
+                endMs: Date.parse(a.end),
+                peakScore: a.peakScore,
+              }))}
+              weak={
+                weak && weak.weakPeriods > 0
+                  ? {
+                      fluxSeries: weak.fluxSeries,
+                      thresholdMs: weak.thresholdMs,
+                      weakPeriods: weak.weakPeriods,
+                      nightPeriods: weak.nightPeriods,
+                      firstWeakMs: weak.firstWeak ? Date.parse(weak.firstWeak) : null,
+                      lastWeakMs: weak.lastWeak ? Date.parse(weak.lastWeak) : null,
+                    }
+                  : null
+              }
             />
           </section>
 
