@@ -13,8 +13,10 @@ import { mailTransport } from "@/lib/mail/transport";
  * mail; the worker delivers it. A row is claimed with a lease (status "sending") in its own
  * committed transaction before SMTP is spoken, and marked "sent" with the server's id right
  * after, so a restart never picks up a delivered row again. Only a crash between the SMTP
- * answer and that update can repeat a message; the retry then carries the same Message-ID,
- * which receiving systems use to drop duplicates.
+ * answer and that update can repeat a message; the retry then carries the same Message-ID
+ * (fixed when the row is first claimed), so a receiver that keeps one copy per Message-ID, as
+ * the local catcher does, still holds it once. No protocol can close that window from the
+ * sender's side alone: SMTP has no way to ask whether a message already arrived.
  */
 
 export type OutgoingMail = {
@@ -65,7 +67,10 @@ export function retryDelayMs(attempts: number): number {
  * Puts a message in the outbox; pass the transaction of the event so both commit together.
  * Returns the row id, or null when `dedupeKey` was queued before.
  */
-export async function queueMail(mail: OutgoingMail, trx: Knex | Knex.Transaction = db): Promise<number | null> {
+export async function queueMail(
+  mail: OutgoingMail,
+  trx: Knex | Knex.Transaction = db,
+): Promise<number | null> {
   const row = {
     dedupe_key: mail.dedupeKey ?? null,
     kind: mail.kind,
@@ -89,7 +94,13 @@ function messageIdFor(id: number): string {
 }
 
 /** Claims up to `limit` due rows for `owner`: pending ones whose time has come and sending ones whose lease ran out. */
-async function claim(owner: string, now: Date, limit: number, filter: OutboxFilter): Promise<OutboxRow[]> {
+async function claim(
+  owner: string,
+  now: Date,
+  limit: number,
+  filter: OutboxFilter,
+  leaseMs: number,
+): Promise<OutboxRow[]> {
   return db.transaction(async (trx) => {
     const q = trx("mail_outbox").where((w) => {
       w.where((d) => {
@@ -100,19 +111,14 @@ async function claim(owner: string, now: Date, limit: number, filter: OutboxFilt
     });
     if (filter.ids) q.whereIn("id", filter.ids);
     if (filter.to) q.andWhere("to_address", filter.to);
-    const ids = (await q
-      .orderBy("id")
-      .limit(limit)
-      .forUpdate()
-      .skipLocked()
-      .pluck("id")) as number[];
+    const ids: number[] = await q.orderBy("id").limit(limit).forUpdate().skipLocked().pluck("id");
     if (ids.length === 0) return [];
     await trx("mail_outbox")
       .whereIn("id", ids)
       .update({
         status: "sending",
         lease_owner: owner,
-        lease_until: new Date(now.getTime() + LEASE_MS),
+        lease_until: new Date(now.getTime() + leaseMs),
         attempts: trx.raw("attempts + 1"),
       });
     const rows = (await trx("mail_outbox").whereIn("id", ids).orderBy("id")) as OutboxRow[];
@@ -134,7 +140,8 @@ export type OutboxFilter = { ids?: number[]; to?: string };
 
 /**
  * Delivers the messages that are due. `now` is the clock used for due times, leases and
- * backoff (tests move it forward instead of waiting).
+ * backoff (tests move it forward instead of waiting); `leaseMs` how long a claimed row stays
+ * this worker's (default LEASE_MS; fault tests shorten it to restart a killed worker quickly).
  */
 export async function deliverDue(
   opts: {
@@ -143,13 +150,14 @@ export async function deliverDue(
     owner?: string;
     limit?: number;
     filter?: OutboxFilter;
+    leaseMs?: number;
   } = {},
 ): Promise<DeliveryReport> {
   const now = opts.now ?? new Date();
   const owner = opts.owner ?? defaultOwner;
   const transport = opts.transport ?? mailTransport();
   const report: DeliveryReport = { sent: 0, retrying: 0, failed: 0 };
-  const rows = await claim(owner, now, opts.limit ?? 20, opts.filter ?? {});
+  const rows = await claim(owner, now, opts.limit ?? 20, opts.filter ?? {}, opts.leaseMs ?? LEASE_MS);
   for (const row of rows) {
     try {
       const info = await transport.sendMail({
@@ -197,13 +205,20 @@ const defaultOwner = `${hostname()}:${process.pid}:${randomBytes(3).toString("he
  * The worker's outbox loop: delivers due mail every `pollMs` until `signal` aborts.
  * Errors (database away, SMTP misconfigured) are logged and the loop carries on.
  */
-export async function runOutbox({ signal, pollMs = 2_000 }: { signal: AbortSignal; pollMs?: number }): Promise<void> {
+export async function runOutbox({
+  signal,
+  pollMs = 2_000,
+}: {
+  signal: AbortSignal;
+  pollMs?: number;
+}): Promise<void> {
   while (!signal.aborted) {
     let busy = false;
     try {
       const r = await deliverDue();
       busy = r.sent + r.retrying + r.failed > 0;
-      if (r.failed > 0) console.error(`[outbox] ${r.failed} message(s) given up after ${MAX_ATTEMPTS} attempts`);
+      if (r.failed > 0)
+        console.error(`[outbox] ${r.failed} message(s) given up after ${MAX_ATTEMPTS} attempts`);
     } catch (err) {
       console.error("[outbox] delivery round failed", err);
     }
