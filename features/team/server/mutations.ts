@@ -15,7 +15,8 @@ import {
   type TeamActionState,
 } from "@/features/team/schemas";
 import { invitationMail } from "@/features/team/server/mail";
-import { invitationStatus, type InvitationRow } from "@/features/team/server/queries";
+import type { InvitationRow } from "@/lib/db/tables";
+import { invitationStatus } from "@/features/team/server/queries";
 
 /*
  * Member and invitation changes, shared by the server actions and the route handlers. Each
@@ -84,9 +85,7 @@ export async function inviteMember(groupId: number, input: InviteInput): Promise
 }
 
 async function lockInvitation(trx: Knex.Transaction, groupId: number, invitationId: number): Promise<InvitationRow> {
-  const row = (await trx("invitations").where({ id: invitationId, group_id: groupId }).forUpdate().first()) as
-    | InvitationRow
-    | undefined;
+  const row = await trx("invitations").where({ id: invitationId, group_id: groupId }).forUpdate().first();
   if (!row) throw new AuthError("not_found");
   return row;
 }
@@ -198,7 +197,7 @@ export async function acceptInvitation(
 ): Promise<AcceptResult> {
   if (!isLinkTokenShape(token)) return REFUSED;
   const tokenHash = hashLinkToken(token);
-  const peek = (await db("invitations").where({ token_hash: tokenHash }).first()) as InvitationRow | undefined;
+  const peek = await db("invitations").where({ token_hash: tokenHash }).first();
   if (!peek || invitationStatus(peek) !== "pending") return REFUSED;
 
   const existing = await db("users")
@@ -229,7 +228,7 @@ export async function acceptInvitation(
   }
 
   return db.transaction(async (trx): Promise<AcceptResult> => {
-    const row = (await trx("invitations").where({ token_hash: tokenHash }).forUpdate().first()) as InvitationRow | undefined;
+    const row = await trx("invitations").where({ token_hash: tokenHash }).forUpdate().first();
     // Re-checked under the lock: a second click or a parallel request finds it accepted.
     if (!row || invitationStatus(row) !== "pending") return REFUSED;
     let userId: string;

@@ -2,20 +2,8 @@ import "server-only";
 import { requireRole } from "@/lib/auth/session";
 import { isRole, type Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
+import type { InvitationRow } from "@/lib/db/tables";
 import type { Invitation, InvitationStatus, Member } from "@/features/team/schemas";
-
-type InvitationRow = {
-  id: number;
-  group_id: number;
-  email: string;
-  role: Role;
-  token_hash: string;
-  invited_by: string | null;
-  expires_at: Date;
-  sent_at: Date;
-  accepted_at: Date | null;
-  revoked_at: Date | null;
-};
 
 export function invitationStatus(row: Pick<InvitationRow, "accepted_at" | "revoked_at" | "expires_at">, now = new Date()): InvitationStatus {
   if (row.accepted_at) return "accepted";
@@ -103,4 +91,3 @@ export async function viewInvitationByHash(tokenHash: string): Promise<Invitatio
   };
 }
 
-export type { InvitationRow };
