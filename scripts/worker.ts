@@ -8,6 +8,7 @@
 import type { JobHandler } from "@/lib/jobs/worker";
 import { newWorkerId, runWorker } from "@/lib/jobs/worker";
 import { closeDb } from "@/lib/db/knex";
+import { describeDatabaseError, isDatabaseUnavailable } from "@/lib/db/errors";
 import { importJobHandlers } from "@/features/imports/server/jobs";
 import { rulesJobHandlers } from "@/features/rules/server/jobs";
 import { anomalyJobHandlers } from "@/features/anomalies/server/jobs";
@@ -48,6 +49,15 @@ async function main(): Promise<void> {
   };
   process.on("SIGINT", onSignal);
   process.on("SIGTERM", onSignal);
+  // A query left unawaited while the database is away must not end the worker; anything else still does.
+  process.on("unhandledRejection", (reason) => {
+    if (isDatabaseUnavailable(reason)) {
+      log(`database unavailable in the background (${describeDatabaseError(reason)}); carrying on`);
+      return;
+    }
+    console.error("[worker] unhandled rejection", reason);
+    process.exit(1);
+  });
 
   await Promise.all([
     runWorker({ handlers: HANDLERS, workerId: newWorkerId(), signal: stop.signal, log }),

@@ -2,6 +2,7 @@ import "server-only";
 import { hostname } from "node:os";
 import { randomBytes } from "node:crypto";
 import { db } from "@/lib/db/knex";
+import { describeDatabaseError, isDatabaseUnavailable } from "@/lib/db/errors";
 import {
   claimNextJob,
   failJob,
@@ -45,7 +46,12 @@ export interface WorkerOptions {
   log?: (message: string) => void;
 }
 
-export type RunOutcome = { jobId: number; kind: string; status: "done" | "failed" | "cancelled"; message?: string };
+export type RunOutcome = {
+  jobId: number;
+  kind: string;
+  status: "done" | "failed" | "cancelled";
+  message?: string;
+};
 
 /** A worker id unique per process: host, pid and a random tag (fits jobs.locked_by). */
 export function newWorkerId(): string {
@@ -176,10 +182,15 @@ function sleep(ms: number, signal?: AbortSignal): Promise<void> {
   });
 }
 
+/** Pause after `failures` failed rounds in a row: 2 s doubling up to 30 s (never below `pollMs`), ms. */
+export function backoffMs(failures: number, pollMs = 0): number {
+  return Math.max(pollMs, Math.min(30_000, 2000 * 2 ** Math.max(0, failures - 1)));
+}
+
 /**
  * The worker loop: re-queues jobs orphaned by a previous worker (stale heartbeat), then claims
  * and runs jobs one at a time until `signal` aborts. Database errors are logged and retried
- * after a pause, so a restart of the database does not end the worker.
+ * with backoff (backoffMs), so a restart of the database does not end the worker.
  */
 export async function runWorker(opts: WorkerOptions): Promise<void> {
   const workerId = opts.workerId ?? newWorkerId();
@@ -188,6 +199,7 @@ export async function runWorker(opts: WorkerOptions): Promise<void> {
   const staleMs = opts.staleMs ?? 30_000;
   const recoverEveryMs = Math.max(pollMs, Math.min(staleMs, 10_000));
   let lastRecovery = 0;
+  let failures = 0;
   log(`worker ${workerId} handling ${Object.keys(opts.handlers).join(", ") || "nothing"}`);
   try {
     const n = await releaseJobsOfDeadLocalWorkers(Object.keys(opts.handlers));
@@ -204,10 +216,17 @@ export async function runWorker(opts: WorkerOptions): Promise<void> {
         if (failed.length) log(`failed job(s) ${failed.join(", ")} after repeated interruptions`);
       }
       const outcome = await runOnce({ ...opts, workerId });
+      if (failures > 0) log(`database reachable again after ${failures} failed round(s); carrying on`);
+      failures = 0;
       if (!outcome) await sleep(pollMs, opts.signal);
     } catch (err) {
-      log(`worker error: ${errorMessage(err)}`);
-      await sleep(Math.max(pollMs, 2000), opts.signal);
+      failures++;
+      const delay = backoffMs(failures, pollMs);
+      // One line per round, not a stack: an outage of minutes should not flood the log.
+      if (isDatabaseUnavailable(err))
+        log(`database unavailable (${describeDatabaseError(err)}); retrying in ${delay / 1000} s`);
+      else log(`worker error: ${errorMessage(err)}; retrying in ${delay / 1000} s`);
+      await sleep(delay, opts.signal);
     }
   }
   log(`worker ${workerId} stopped`);

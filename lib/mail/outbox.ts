@@ -5,6 +5,7 @@ import type { Knex } from "knex";
 import type { Transporter } from "nodemailer";
 import type SMTPTransport from "nodemailer/lib/smtp-transport";
 import { db } from "@/lib/db/knex";
+import { describeDatabaseError, isDatabaseUnavailable } from "@/lib/db/errors";
 import { env } from "@/lib/env";
 import { mailTransport } from "@/lib/mail/transport";
 
@@ -212,15 +213,29 @@ export async function runOutbox({
   signal: AbortSignal;
   pollMs?: number;
 }): Promise<void> {
+  let failures = 0;
   while (!signal.aborted) {
     let busy = false;
     try {
       const r = await deliverDue();
+      if (failures > 0) console.error(`[outbox] delivering again after ${failures} failed round(s)`);
+      failures = 0;
       busy = r.sent + r.retrying + r.failed > 0;
       if (r.failed > 0)
         console.error(`[outbox] ${r.failed} message(s) given up after ${MAX_ATTEMPTS} attempts`);
     } catch (err) {
-      console.error("[outbox] delivery round failed", err);
+      failures++;
+      // Database away: one line per round and a growing pause (2 s doubling to 30 s), not a stack every poll.
+      const delay = Math.max(pollMs, Math.min(30_000, 2000 * 2 ** (failures - 1)));
+      if (isDatabaseUnavailable(err)) {
+        console.error(
+          `[outbox] database unavailable (${describeDatabaseError(err)}); retrying in ${delay / 1000} s`,
+        );
+      } else {
+        console.error("[outbox] delivery round failed", err);
+      }
+      await sleep(delay, signal);
+      continue;
     }
     if (!busy) await sleep(pollMs, signal);
   }
