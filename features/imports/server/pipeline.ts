@@ -15,7 +15,12 @@ import { refusalReport, rejectedCsv, reportFromRead } from "@/features/imports/s
 import { planColumns, writeHalfHours } from "@/features/imports/server/write";
 
 /** Progress as the job shows it. */
-export type Progress = (phase: string, done: number, total: number, unit: "rows" | "bytes" | "evenings") => Promise<void> | void;
+export type Progress = (
+  phase: string,
+  done: number,
+  total: number,
+  unit: "rows" | "bytes" | "evenings",
+) => Promise<void> | void;
 
 export type ImportRow = {
   id: number;
@@ -64,11 +69,18 @@ export class ImportFailure extends Error {
 const MAX_TRACERS = 8;
 
 /** The site's series slot of each tracer, adding rows for new names (inside `trx`). */
-async function tracerSlots(trx: Knex.Transaction, siteId: number, table: HalfHourTable): Promise<Map<string, number>> {
+async function tracerSlots(
+  trx: Knex.Transaction,
+  siteId: number,
+  table: HalfHourTable,
+): Promise<Map<string, number>> {
   const names = Object.keys(table.columns).filter((n) => !isKnownVariable(n));
   const slots = new Map<string, number>();
   if (names.length === 0) return slots;
-  const rows = await trx<{ site_id: number; slot: number; name: string }>("site_series").where({ site_id: siteId }).forUpdate().select("slot", "name");
+  const rows = await trx<{ site_id: number; slot: number; name: string }>("site_series")
+    .where({ site_id: siteId })
+    .forUpdate()
+    .select("slot", "name");
   for (const r of rows) slots.set(r.name.toUpperCase(), r.slot);
   const used = new Set(rows.map((r) => r.slot));
   const out = new Map<string, number>();
@@ -77,7 +89,9 @@ async function tracerSlots(trx: Knex.Transaction, siteId: number, table: HalfHou
     if (slot === undefined) {
       slot = [1, 2, 3, 4, 5, 6, 7, 8].find((s) => !used.has(s));
       if (slot === undefined) {
-        throw new ImportFailure(`The site already has ${MAX_TRACERS} tracer series; ${name} has no free slot. Leave a tracer column out of the mapping.`);
+        throw new ImportFailure(
+          `The site already has ${MAX_TRACERS} tracer series; ${name} has no free slot. Leave a tracer column out of the mapping.`,
+        );
       }
       used.add(slot);
       const unit = (table.units[name] ?? "").slice(0, 32);
@@ -96,13 +110,35 @@ function localDate(ms: number, offsetHours: number): string {
 
 function describeDbError(err: unknown): string {
   const e = err as { code?: string; message?: string; fatal?: boolean };
-  const lost = e.code === "PROTOCOL_CONNECTION_LOST" || e.code === "ECONNRESET" || e.code === "ER_CONNECTION_KILLED" || e.code === "EPIPE" || /closed state|connection lost|killed/i.test(e.message ?? "");
+  const lost =
+    e.code === "PROTOCOL_CONNECTION_LOST" ||
+    e.code === "ECONNRESET" ||
+    e.code === "ER_CONNECTION_KILLED" ||
+    e.code === "EPIPE" ||
+    /closed state|connection lost|killed/i.test(e.message ?? "");
   if (lost) return "the database connection was lost while the rows were being written";
-  if (e.code === "ER_LOCK_WAIT_TIMEOUT" || e.code === "ER_LOCK_DEADLOCK") return "the database was busy with another write to this site";
+  if (e.code === "ER_LOCK_WAIT_TIMEOUT" || e.code === "ER_LOCK_DEADLOCK")
+    return "the database was busy with another write to this site";
+  if (/did not take every row/.test(e.message ?? ""))
+    return `${e.message} (another import of the same periods may have landed meanwhile)`;
   return `the database refused the rows (${e.code ?? "error"})`;
 }
 
-async function setImport(id: number, patch: Record<string, unknown>, trx: Knex | Knex.Transaction = db): Promise<void> {
+/** How long a run waits for another run of the same import to finish writing, s. */
+const IMPORT_LOCK_WAIT_S = 600;
+
+/** Records a failure, unless another run of the import has landed it meanwhile. */
+async function setImportUnlessLanded(id: number, patch: Record<string, unknown>): Promise<void> {
+  const values: Record<string, unknown> = { ...patch };
+  if (values.report !== undefined && values.report !== null) values.report = JSON.stringify(values.report);
+  await db("imports").where({ id }).whereNot({ status: "landed" }).update(values);
+}
+
+async function setImport(
+  id: number,
+  patch: Record<string, unknown>,
+  trx: Knex | Knex.Transaction = db,
+): Promise<void> {
   const values: Record<string, unknown> = { ...patch };
   if (values.report !== undefined && values.report !== null) values.report = JSON.stringify(values.report);
   await trx("imports").where({ id }).update(values);
@@ -124,18 +160,21 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   const columns = jsonColumn<ColumnMapping>(imp.mapping) ?? undefined;
   const offset = settings.utcOffsetHours ?? Number(site.utc_offset_hours);
 
-  await setImport(importId, { status: "running" });
+  // A second run of the same import finds "running" and leaves the row alone: an update would wait
+  // on the first run's lock and could overwrite the "landed" it commits.
+  if (imp.status !== "running") await setImportUnlessLanded(importId, { status: "running" });
   await progress("reading", 0, imp.size_bytes, "bytes");
 
   // ---- read and validate, streaming from storage
-  let read: Awaited<ReturnType<typeof readTable>>;
+  let read: Awaited<ReturnType<typeof readTable>> | undefined;
   try {
     const stream = await getObject(imp.storage_key);
     let last = 0;
     read = await readTable(stream, {
       utcOffsetHours: offset,
       mapping: columns,
-      missingCodes: settings.missingCodes && settings.missingCodes.length > 0 ? settings.missingCodes : undefined,
+      missingCodes:
+        settings.missingCodes && settings.missingCodes.length > 0 ? settings.missingCodes : undefined,
       timestampConvention: settings.timestampConvention,
       sizeHintBytes: imp.size_bytes,
       maxRejected: 100_000,
@@ -149,20 +188,30 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   } catch (err) {
     if (err instanceof TableError) {
       const message = `Refused: ${err.message}${err.row !== null ? ` (line ${err.row})` : ""}. Nothing was written.`;
-      await setImport(importId, { status: "refused", report: refusalReport(err.row, err.message), finished_at: new Date() });
+      await setImportUnlessLanded(importId, {
+        status: "refused",
+        report: refusalReport(err.row, err.message),
+        finished_at: new Date(),
+      });
       throw new ImportFailure(message);
     }
     throw err;
   }
-  const { table, report: readReport } = read;
-  const n = table.startMs.length;
-  const first = table.startMs[0] as number;
-  const lastStart = table.startMs[n - 1] as number;
+  const readReport = read.report;
+  const n = read.table.startMs.length;
+  const first = read.table.startMs[0] as number;
+  const lastStart = read.table.startMs[n - 1] as number;
+  // Held in a box that is emptied once the rows are written: classifying reads them back, and
+  // two copies of a large file at once would double the peak memory.
+  const held: { table: HalfHourTable | null } = { table: read.table };
+  read = undefined;
 
   // ---- the full rejected list, kept beside the original
   let rejectedKey: string | null = null;
   if (readReport.rejected.length > 0) {
-    const stored = await putObject(Readable.from(rejectedCsv(readReport.rejected, readReport.rejectedNotListed)));
+    const stored = await putObject(
+      Readable.from(rejectedCsv(readReport.rejected, readReport.rejectedNotListed)),
+    );
     rejectedKey = stored.key;
   }
   const report = reportFromRead(readReport, rejectedKey);
@@ -172,15 +221,26 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   const existing = (await db("half_hours")
     .where({ site_id: imp.site_id })
     .whereBetween("start_utc", [new Date(first), new Date(lastStart)])
+    // rows of this very import exist only if another run landed it meanwhile (found under the lock below)
+    .whereRaw("(import_id IS NULL OR import_id <> ?)", [importId])
     .count({ n: "*" })
     .first()) as { n: number | string } | undefined;
   const existingRows = Number(existing?.n ?? 0);
   let choice: OverlapChoice | null = null;
   if (existingRows > 0) {
-    report.overlap = { existingRows, from: new Date(first).toISOString(), to: new Date(lastStart).toISOString() };
+    report.overlap = {
+      existingRows,
+      from: new Date(first).toISOString(),
+      to: new Date(lastStart).toISOString(),
+    };
     const wanted = imp.overlap_choice ?? settings.overlap ?? "cancel";
     if (wanted === "ask") {
-      await setImport(importId, { status: "pending", report, first_start_utc: new Date(first), last_start_utc: new Date(lastStart) });
+      await setImportUnlessLanded(importId, {
+        status: "pending",
+        report,
+        first_start_utc: new Date(first),
+        last_start_utc: new Date(lastStart),
+      });
       return { outcome: "needs_choice", importId, existingRows };
     }
     if (wanted === "cancel") {
@@ -188,7 +248,12 @@ export async function runImport(importId: number, progress: Progress): Promise<I
         row: null,
         message: `The file overlaps ${existingRows} half-hours already stored for this site (${report.overlap.from} to ${report.overlap.to}); cancelled, nothing was written. Choose "replace" or "keep" to import it.`,
       };
-      await setImport(importId, { status: "refused", overlap_choice: "cancel", report, finished_at: new Date() });
+      await setImportUnlessLanded(importId, {
+        status: "refused",
+        overlap_choice: "cancel",
+        report,
+        finished_at: new Date(),
+      });
       return { outcome: "cancelled", importId };
     }
     choice = wanted;
@@ -198,10 +263,21 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   await progress("writing", 0, n, "rows");
   let written: number;
   try {
-    written = await db.transaction(async (trx) => {
+    const landed = await db.transaction(async (trx): Promise<number | "already"> => {
+      // Another run of this import (a second worker, a job re-queued while its first worker still
+      // writes) waits here until that run commits or rolls back, then finds the rows landed.
+      const [locked] = (await trx.raw(
+        `SELECT status FROM imports WHERE id = ? FOR UPDATE WAIT ${IMPORT_LOCK_WAIT_S}`,
+        [importId],
+      )) as [Array<{ status: string }>];
+      if (locked[0]?.status === "landed") return "already";
+      const table = held.table;
+      if (!table) throw new Error("the parsed table is gone");
       const slots = await tracerSlots(trx, imp.site_id, table);
       const plan = planColumns(table, slots);
-      const rows = await writeHalfHours(trx, imp.site_id, importId, table, plan, choice, (done) => progress("writing", done, n, "rows"));
+      const rows = await writeHalfHours(trx, imp.site_id, importId, table, plan, choice, (done) =>
+        progress("writing", done, n, "rows"),
+      );
       report.written = { rows, choice };
       await setImport(
         importId,
@@ -218,17 +294,28 @@ export async function runImport(importId: number, progress: Progress): Promise<I
       );
       return rows;
     });
+    if (landed === "already") return { outcome: "already", importId };
+    written = landed;
   } catch (err) {
     if (err instanceof ImportFailure) {
-      await setImport(importId, { status: "failed", report: { ...report, refusal: { row: null, message: err.message } }, finished_at: new Date() });
+      await setImportUnlessLanded(importId, {
+        status: "failed",
+        report: { ...report, refusal: { row: null, message: err.message } },
+        finished_at: new Date(),
+      });
       throw err;
     }
     const why = describeDbError(err);
     console.error(`import ${importId}: write failed`, err);
     const message = `Import failed: ${why}. The transaction was rolled back, so none of its rows were stored; run the import again.`;
-    await setImport(importId, { status: "failed", report: { ...report, refusal: { row: null, message } }, finished_at: new Date() }).catch(() => undefined);
+    await setImportUnlessLanded(importId, {
+      status: "failed",
+      report: { ...report, refusal: { row: null, message } },
+      finished_at: new Date(),
+    }).catch(() => undefined);
     throw new ImportFailure(message);
   }
+  held.table = null;
 
   // ---- classify the evenings the rows touch (with a day either side for the windows)
   const fromDate = localDate(first - 86_400_000, Number(site.utc_offset_hours));

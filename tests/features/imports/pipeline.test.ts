@@ -12,40 +12,65 @@ import { deleteImportAction, recomputeAction, resolveOverlapAction } from "@/fea
 import type { JobView } from "@/features/imports/schemas";
 import { getImport } from "@/features/imports/server/queries";
 import { formData } from "@/tests/support/next";
-import { BASE, analystWithSite, drain, eveningCount, halfHourCount, importFile, syntheticCsv, upload } from "@/tests/features/imports/helpers";
+import {
+  BASE,
+  analystWithSite,
+  drain,
+  eveningCount,
+  halfHourCount,
+  importFile,
+  syntheticCsv,
+  upload,
+} from "@/tests/features/imports/helpers";
 
 const TWO_YEARS = syntheticCsv(730, { startDate: "2021-01-01", seed: 11 });
 
 describe("a two-year file", () => {
-  test("imports through the API, classifies its evenings, and the same file again is a no-op", { timeout: 180_000 }, async () => {
-    const { client, site } = await analystWithSite();
-    const { job, imp, body } = await importFile(client, site.id, TWO_YEARS, { name: "two-years.csv" });
-    expect(job.status).toBe("done");
-    expect(imp.status).toBe("landed");
-    expect(imp.rowsWritten).toBe(730 * 48);
-    expect(await halfHourCount(site.id)).toBe(730 * 48);
-    const labels = await db<{ site_id: number; auto_label: string }>("evenings").where({ site_id: site.id }).select("auto_label").count({ n: "*" }).groupBy("auto_label");
-    const byLabel = Object.fromEntries(labels.map((l) => [l.auto_label, Number(l.n)]));
-    // Every evening of the file is stored; the synthetic mix holds all three kinds.
-    expect(Object.values(byLabel).reduce((a, b) => a + b, 0)).toBeGreaterThanOrEqual(729);
-    expect(byLabel.local).toBeGreaterThan(0);
-    expect(byLabel.stagnant).toBeGreaterThan(0);
-    expect(byLabel.advective).toBeGreaterThan(0);
-    expect(imp.report?.evenings?.computed).toBeGreaterThan(700);
+  test(
+    "imports through the API, classifies its evenings, and the same file again is a no-op",
+    { timeout: 180_000 },
+    async () => {
+      const { client, site } = await analystWithSite();
+      const { job, imp, body } = await importFile(client, site.id, TWO_YEARS, { name: "two-years.csv" });
+      expect(job.status).toBe("done");
+      expect(imp.status).toBe("landed");
+      expect(imp.rowsWritten).toBe(730 * 48);
+      expect(await halfHourCount(site.id)).toBe(730 * 48);
+      const labels = await db<{ site_id: number; auto_label: string }>("evenings")
+        .where({ site_id: site.id })
+        .select("auto_label")
+        .count({ n: "*" })
+        .groupBy("auto_label");
+      const byLabel = Object.fromEntries(labels.map((l) => [l.auto_label, Number(l.n)]));
+      // Every evening of the file is stored; the synthetic mix holds all three kinds.
+      expect(Object.values(byLabel).reduce((a, b) => a + b, 0)).toBeGreaterThanOrEqual(729);
+      expect(byLabel.local).toBeGreaterThan(0);
+      expect(byLabel.stagnant).toBeGreaterThan(0);
+      expect(byLabel.advective).toBeGreaterThan(0);
+      expect(imp.report?.evenings?.computed).toBeGreaterThan(700);
 
-    // GET /api/jobs/:id answers with phase, progress and the import's report.
-    const res = await client.call(() => jobGET(new Request(`${BASE}/api/jobs/${body.jobId}`), { params: Promise.resolve({ jobId: String(body.jobId) }) }));
-    const view = ((await res.json()) as { job: JobView }).job;
-    expect(view).toMatchObject({ status: "done", kind: "import", import: { id: imp.id, status: "landed" } });
+      // GET /api/jobs/:id answers with phase, progress and the import's report.
+      const res = await client.call(() =>
+        jobGET(new Request(`${BASE}/api/jobs/${body.jobId}`), {
+          params: Promise.resolve({ jobId: String(body.jobId) }),
+        }),
+      );
+      const view = ((await res.json()) as { job: JobView }).job;
+      expect(view).toMatchObject({
+        status: "done",
+        kind: "import",
+        import: { id: imp.id, status: "landed" },
+      });
 
-    const before = await db("half_hours").where({ site_id: site.id }).count({ n: "*" }).first();
-    const again = await upload(client, site.id, TWO_YEARS, { name: "renamed.csv" });
-    expect(again.res.status).toBe(200);
-    expect(again.body.status).toBe("already_imported");
-    expect(again.body.message).toMatch(/^Already imported/);
-    expect(await db("half_hours").where({ site_id: site.id }).count({ n: "*" }).first()).toEqual(before);
-    expect(await db("imports").where({ site_id: site.id }).count({ n: "*" }).first()).toEqual({ n: 1 });
-  });
+      const before = await db("half_hours").where({ site_id: site.id }).count({ n: "*" }).first();
+      const again = await upload(client, site.id, TWO_YEARS, { name: "renamed.csv" });
+      expect(again.res.status).toBe(200);
+      expect(again.body.status).toBe("already_imported");
+      expect(again.body.message).toMatch(/^Already imported/);
+      expect(await db("half_hours").where({ site_id: site.id }).count({ n: "*" }).first()).toEqual(before);
+      expect(await db("imports").where({ site_id: site.id }).count({ n: "*" }).first()).toEqual({ n: 1 });
+    },
+  );
 });
 
 describe("overlaps", () => {
@@ -76,8 +101,15 @@ describe("overlaps", () => {
     const job = await drain(answer.jobId as number);
     expect(job.status).toBe("done");
     expect(await halfHourCount(site.id)).toBe(288);
-    const owners = await db<{ site_id: number; import_id: number }>("half_hours").where({ site_id: site.id }).select("import_id").count({ n: "*" }).groupBy("import_id");
-    expect(Object.fromEntries(owners.map((o) => [o.import_id, Number(o.n)]))).toEqual({ [a.imp.id]: 96, [asked.imp.id]: 192 });
+    const owners = await db<{ site_id: number; import_id: number }>("half_hours")
+      .where({ site_id: site.id })
+      .select("import_id")
+      .count({ n: "*" })
+      .groupBy("import_id");
+    expect(Object.fromEntries(owners.map((o) => [o.import_id, Number(o.n)]))).toEqual({
+      [a.imp.id]: 96,
+      [asked.imp.id]: 192,
+    });
 
     // keep: a third file over the same days only fills what is not stored.
     const third = syntheticCsv(6, { startDate: "2022-03-04", seed: 5 });
@@ -103,7 +135,9 @@ describe("deleting and purging", () => {
     const { client, site, groupId } = await analystWithSite("lead");
     const content = syntheticCsv(3, { startDate: "2022-09-01" });
     const { imp } = await importFile(client, site.id, content);
-    const key = (await db<{ id: number; storage_key: string }>("imports").where({ id: imp.id }).first("storage_key"))?.storage_key ?? "";
+    const key =
+      (await db<{ id: number; storage_key: string }>("imports").where({ id: imp.id }).first("storage_key"))
+        ?.storage_key ?? "";
     const del = await client.call(() => deleteImportAction(site.id, imp.id, false));
     expect(del.ok).toBe(true);
     expect(await halfHourCount(site.id)).toBe(0);
@@ -147,7 +181,9 @@ describe("rejected rows", () => {
     expect(imp.report?.rejectedTotal).toBe(70);
     expect(imp.report?.rejectedSample.length).toBe(50);
     const res = await client.call(() =>
-      rejectedGET(new Request(`${BASE}/api/sites/${site.id}/imports/${imp.id}/rejected`), { params: Promise.resolve({ siteId: String(site.id), importId: String(imp.id) }) }),
+      rejectedGET(new Request(`${BASE}/api/sites/${site.id}/imports/${imp.id}/rejected`), {
+        params: Promise.resolve({ siteId: String(site.id), importId: String(imp.id) }),
+      }),
     );
     expect(res.headers.get("content-type")).toMatch(/text\/csv/);
     const text = await res.text();
@@ -163,7 +199,9 @@ describe("recompute a period", () => {
     const { client, site } = await analystWithSite();
     await importFile(client, site.id, syntheticCsv(5, { startDate: "2022-05-01" }));
     await db("evenings").where({ site_id: site.id }).delete();
-    const state = await client.call(() => recomputeAction({ ok: false }, formData({ siteId: site.id, from: "2022-05-01", to: "2022-05-05" })));
+    const state = await client.call(() =>
+      recomputeAction({ ok: false }, formData({ siteId: site.id, from: "2022-05-01", to: "2022-05-05" })),
+    );
     expect(state.ok).toBe(true);
     const job = await drain(state.jobId as number);
     expect(job.status).toBe("done");
@@ -173,7 +211,9 @@ describe("recompute a period", () => {
 
   test("a period that ends before it starts is answered beside the field", async () => {
     const { client, site } = await analystWithSite();
-    const state = await client.call(() => recomputeAction({ ok: false }, formData({ siteId: site.id, from: "2022-05-05", to: "2022-05-01" })));
+    const state = await client.call(() =>
+      recomputeAction({ ok: false }, formData({ siteId: site.id, from: "2022-05-05", to: "2022-05-01" })),
+    );
     expect(state.ok).toBe(false);
     expect(state.fieldErrors?.to).toEqual(["The period ends before it starts."]);
   });
@@ -182,7 +222,15 @@ describe("recompute a period", () => {
 describe("a database connection cut mid-import", () => {
   test("leaves no partial rows and a failed job with a clear reason", { timeout: 180_000 }, async () => {
     const { client, site } = await analystWithSite();
-    const { res, body } = await upload(client, site.id, syntheticCsv(1200, { startDate: "2010-01-01", seed: 9, columns: ["WS", "WD", "USTAR", "W_SIGMA", "H", "TA", "PA"] }));
+    const { res, body } = await upload(
+      client,
+      site.id,
+      syntheticCsv(1200, {
+        startDate: "2010-01-01",
+        seed: 9,
+        columns: ["WS", "WD", "USTAR", "W_SIGMA", "H", "TA", "PA"],
+      }),
+    );
     expect(res.status).toBe(202);
     const jobId = body.jobId as number;
     // Kill the connection that writes this site's rows once the writing phase has begun.
@@ -191,8 +239,8 @@ describe("a database connection cut mid-import", () => {
       const deadline = Date.now() + 120_000;
       while (!killed && Date.now() < deadline) {
         const [rows] = (await db.raw(
-          "SELECT ID AS id FROM information_schema.PROCESSLIST WHERE INFO LIKE 'INSERT INTO half_hours%' AND INFO LIKE ?",
-          [`%VALUES (${site.id},'%`],
+          "SELECT ID AS id FROM information_schema.PROCESSLIST WHERE INFO LIKE 'LOAD DATA LOCAL INFILE%INTO TABLE half_hours%' AND INFO LIKE ?",
+          [`%SET site_id = ${site.id},%`],
         )) as [Array<{ id: number }>];
         const id = rows[0]?.id;
         if (id !== undefined) {
