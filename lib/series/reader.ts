@@ -103,6 +103,8 @@ export interface ReadOptions {
   fastPath?: boolean;
   /** Size of the input in bytes, when known, to size the arrays once. */
   sizeHintBytes?: number;
+  /** Rows starting after this instant (UTC epoch ms) are rejected as in the future; default midnight UTC two days ahead. */
+  notAfterMs?: number;
   /** Called after every parsed chunk. */
   onProgress?: (rowsRead: number, bytesRead: number) => void;
 }
@@ -169,6 +171,8 @@ export interface ReadReport {
 export type TableInput = NodeJS.ReadableStream | AsyncIterable<Uint8Array | string> | string;
 
 const HEADER_SEARCH_LINES = 10;
+/** "12,5": a decimal comma, read as such only when the comma is not the field delimiter. */
+const DECIMAL_COMMA = /^\s*[-+]?\d+,\d+\s*$/;
 const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
 
 /**
@@ -210,6 +214,8 @@ interface DecodeState {
  * the first chunk is not valid UTF-8, else UTF-8. The default decoders drop the byte-order mark.
  */
 function decoderFor(head: Uint8Array, state: DecodeState): TextDecoder {
+  const kind = packedKind(head);
+  if (kind) throw new TableError(1, `the file is ${kind}, not a table: unpack or export it as CSV text and upload that`);
   if (head[0] === 0xff && head[1] === 0xfe) return new TextDecoder("utf-16le");
   if (head[0] === 0xfe && head[1] === 0xff) return new TextDecoder("utf-16be");
   try {
@@ -219,6 +225,16 @@ function decoderFor(head: Uint8Array, state: DecodeState): TextDecoder {
     state.encodingNote = "the file is not UTF-8; it was read as Latin-1 (Windows-1252): check that names and units look right";
     return new TextDecoder("windows-1252");
   }
+}
+
+/** Archives and documents sent by mistake, named from their first bytes (never unpacked). */
+function packedKind(head: Uint8Array): string | null {
+  if (head[0] === 0x1f && head[1] === 0x8b) return "gzip-compressed";
+  if (head[0] === 0x50 && head[1] === 0x4b && (head[2] === 0x03 || head[2] === 0x05) && (head[3] === 0x04 || head[3] === 0x06)) return "a zip archive (an .xlsx workbook is one)";
+  if (head[0] === 0x42 && head[1] === 0x5a && head[2] === 0x68) return "bzip2-compressed";
+  if (head[0] === 0x25 && head[1] === 0x50 && head[2] === 0x44 && head[3] === 0x46) return "a PDF document";
+  if (head[0] === 0xd0 && head[1] === 0xcf && head[2] === 0x11 && head[3] === 0xe0) return "an old Office document (.xls)";
+  return null;
 }
 
 async function* decodeText(input: TableInput, counter: DecodeState): AsyncGenerator<string> {
@@ -394,6 +410,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   const fieldCountLines: number[] = [];
   let fieldCountProblems = 0;
   let skippedBadTimestamps = 0;
+  let decimalCommas = 0;
   const bytes: DecodeState = { bytes: 0, encodingNote: null };
 
   let tsA = -1;
@@ -507,7 +524,11 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
       }
       return NaN;
     }
-    const v = Number(cell);
+    let v = Number(cell);
+    if (v !== v && delimiter !== "," && DECIMAL_COMMA.test(cell)) {
+      v = Number(cell.replace(",", "."));
+      decimalCommas++;
+    }
     if (v !== v) {
       if (missingText.has(cell.trim().toLowerCase())) missingCount[k]!++;
       else {
@@ -660,7 +681,9 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
 
   const badStamp = (bad: string, inA: boolean): void => {
     const col = inA ? (tsKind === "dateTime" ? `${headers[tsA]} + ${headers[tsB]}` : headers[tsA]) : headers[tsB];
-    const msg = `cannot read the timestamp "${bad}" in column ${col} (expected YYYYMMDDHHMM, ISO 8601 or YYYY-MM-DD HH:MM)`;
+    // A quote left open swallows the following lines into one cell: show its start only.
+    const shown = bad.length > 60 ? `${bad.slice(0, 60).replace(/[\r\n]+/g, " ")}..." (${bad.length} characters${/[\r\n]/.test(bad) ? ", running over line breaks: is a quote left open?" : ""})` : `${bad}"`;
+    const msg = `cannot read the timestamp "${shown} in column ${col} (expected YYYYMMDDHHMM, ISO 8601 or YYYY-MM-DD HH:MM)`;
     if (badTimestamp === "error") throw new TableError(line, msg);
     skippedBadTimestamps++;
     reject(line, col ?? "", bad, msg);
@@ -733,7 +756,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     options.onProgress?.(store?.n ?? 0, bytes.bytes);
   }
   if (carry !== "") {
-    const last = carry.endsWith(newline) ? carry.slice(0, -newline.length) : carry;
+    const last = newline && carry.endsWith(newline) ? carry.slice(0, -newline.length) : carry;
     carry = "";
     if (last !== "") feed(last);
   }
@@ -749,6 +772,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
   if (n === 0) throw new TableError(line, "no data rows after the header");
 
   if (bytes.encodingNote) warnings.push(bytes.encodingNote);
+  if (decimalCommas > 0) warnings.push(`${decimalCommas} cells use a decimal comma (e.g. 12,5) and were read as decimals`);
   if (parseWarnings > 0) warnings.push(`${parseWarnings} CSV problems (e.g. ${firstParseErrors.join("; ")})`);
   if (fieldCountProblems > 0) {
     warnings.push(`${fieldCountProblems} rows have a different number of fields than the header (${headers.length}); missing fields read as missing (lines ${fieldCountLines.join(", ")}${fieldCountProblems > fieldCountLines.length ? ", ..." : ""})`);
@@ -877,9 +901,17 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
       }
     }
   }
+  // Measurements cannot start after the reading; such rows are typos of the year or clock.
+  // Whole UTC days, so that reading the same file twice gives the same report.
+  const notAfter = options.notAfterMs ?? (Math.floor(Date.now() / 86_400_000) + 2) * 86_400_000;
+  let future = 0;
+  for (let i = 0; i < n; i++) if ((A[i] as number) > notAfter) future++;
+  if (future === n) {
+    throw new TableError(st.line[0] as number, `every row starts in the future (first ${iso(A[0] as number)}, after ${iso(notAfter)}): check the year and the UTC offset`);
+  }
   let order: Uint32Array | null = null;
   let duplicates = 0;
-  if (!strictlyIncreasing) {
+  if (!strictlyIncreasing || future > 0) {
     const idx = new Uint32Array(n);
     for (let i = 0; i < n; i++) idx[i] = i;
     // The index tie-break keeps file order among equal stamps, so the first occurrence wins.
@@ -889,6 +921,10 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     let lastKept = -1;
     for (let j = 0; j < n; j++) {
       const i = idx[j] as number;
+      if ((A[i] as number) > notAfter) {
+        reject(st.line[i] as number, p.timestampHeaders.join(" + "), iso(A[i] as number), "starts in the future");
+        continue;
+      }
       if (lastKept >= 0 && A[i] === A[lastKept]) {
         duplicates++;
         reject(st.line[i] as number, p.timestampHeaders.join(" + "), iso(A[i] as number), `duplicate period start (line ${st.line[lastKept]} kept)`);
@@ -900,6 +936,7 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     order = kept.subarray(0, m);
     if (outOfOrder > 0) warnings.push(`${outOfOrder} rows were out of time order (lines ${outOfOrderLines.join(", ")}${outOfOrder > outOfOrderLines.length ? ", ..." : ""}); rows were sorted into time order`);
     if (duplicates > 0) warnings.push(`${duplicates} rows repeat an earlier period start; the first was kept, the repeats rejected`);
+    if (future > 0) warnings.push(`${future} rows start in the future (after ${iso(notAfter)}) and were rejected`);
   }
   // Without reordering, a view avoids a transient second copy when the arrays were sized well.
   const tight = st.cap <= n * 1.1;

@@ -6,11 +6,15 @@
  *  - ISO 8601 `YYYY-MM-DDTHH:MM[:SS[.fff]]` with `Z`, `+HH:MM`, `+HHMM` or `+HH`, or without offset;
  *  - `YYYY-MM-DD HH:MM[:SS]` and `YYYY/MM/DD HH:MM[:SS]`, also `HHMM` after the date;
  *  - a bare date `YYYY-MM-DD` (midnight).
+ * Years before 1900 are not read (a zero-padded or shortened year is a typo).
  * Hour 24 is accepted with minute 0 (loggers write `24:00` for the end of a day).
  * Without an explicit offset the text is a reading of the data clock, whose offset is given.
  */
 
 const ISO = /^(\d{4})[-/](\d{1,2})[-/](\d{1,2})(?:[T ](\d{1,2}):?(\d{2})(?::(\d{2})(?:[.,](\d{1,9}))?)?)?\s*(Z|[+-]\d{2}(?::?\d{2})?)?$/i;
+
+/** Earliest year read; earlier years are typos (and Date.UTC would shift 0..99 by 1900). */
+const MIN_YEAR = 1900;
 
 function daysInMonth(y: number, m: number): number {
   if (m === 2) return (y % 4 === 0 && y % 100 !== 0) || y % 400 === 0 ? 29 : 28;
@@ -18,6 +22,8 @@ function daysInMonth(y: number, m: number): number {
 }
 
 function compose(y: number, mo: number, d: number, h: number, mi: number, s: number, ms: number, offsetMinutes: number): number {
+  // Date.UTC moves years 0..99 to 1900..1999, and no tower measured before 1900: "0022" is a typo.
+  if (y < MIN_YEAR) return NaN;
   if (mo < 1 || mo > 12 || d < 1 || d > daysInMonth(y, mo)) return NaN;
   if (h > 24 || mi > 59 || s > 59 || (h === 24 && (mi !== 0 || s !== 0))) return NaN;
   return Date.UTC(y, mo - 1, d, h, mi, s, ms) - offsetMinutes * 60_000;

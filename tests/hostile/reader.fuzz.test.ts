@@ -200,4 +200,54 @@ describe("table reader under hostile input", () => {
       { numRuns: 1000, seed: 6 },
     );
   });
+
+  test("archives and documents are named, never unpacked", async () => {
+    const cases: [number[], RegExp][] = [
+      [[0x1f, 0x8b, 8, 0], /gzip/],
+      [[0x50, 0x4b, 3, 4], /zip archive/],
+      [[0x42, 0x5a, 0x68, 0x39], /bzip2/],
+      [[0x25, 0x50, 0x44, 0x46, 0x2d], /PDF/],
+      [[0xd0, 0xcf, 0x11, 0xe0], /\.xls/],
+    ];
+    for (const [head, re] of cases) {
+      const res = await outcome(Uint8Array.from([...head, ...new Array(100).fill(65)]), [2]);
+      expect(res).toMatchObject({ kind: "error", row: 1, message: expect.stringMatching(re) });
+    }
+  });
+
+  test("a file with no line break at all is not called empty", async () => {
+    const res = await outcome(enc.encode('{"rows":[1,2,3]}'));
+    expect(res).toMatchObject({ kind: "error", message: expect.stringMatching(/no header/) });
+  });
+
+  test("decimal commas are read where the comma is not the delimiter, and reported", async () => {
+    const text = "TIMESTAMP;TA;WS\n2022-06-01 00:30;12,5;1,25\n2022-06-01 01:00;12,4;0,9\n";
+    for (const fastPath of [true, false]) {
+      const { table, report } = await readTable(text, { ...OPTS, fastPath });
+      expect(Array.from(table.columns.TA ?? [])).toEqual([12.5, 12.4]);
+      expect(report.warnings.join(" ")).toMatch(/4 cells use a decimal comma/);
+    }
+  });
+
+  test("rows in the future are rejected; a file of only such rows is refused", async () => {
+    const notAfterMs = Date.UTC(2022, 5, 1, 12);
+    const { table, report } = await readTable(goodFile(48), { ...OPTS, notAfterMs });
+    expect(table.startMs.length).toBe(25);
+    expect(report.rejected.filter((r) => r.reason === "starts in the future")).toHaveLength(23);
+    await expect(readTable(goodFile(48), { ...OPTS, notAfterMs: Date.UTC(2000, 0, 1) })).rejects.toThrow(/every row starts in the future/);
+  });
+
+  test("years before 1900 are not read (Date.UTC would move 0022 to 1922)", () => {
+    expect(parseTimestamp("002206010030", 0)).toBeNaN();
+    expect(parseTimestamp("0022-06-01 00:30", 0)).toBeNaN();
+    expect(parseTimestamp("1900-01-01 00:30", 0)).toBe(Date.UTC(1900, 0, 1, 0, 30));
+  });
+
+  test("an unreadable timestamp that swallowed later lines is shown by its start", async () => {
+    const lines = goodFile(20).split("\n");
+    lines[3] = `"${lines[3]}`;
+    const res = await outcome(lines.join("\n"));
+    expect(res).toMatchObject({ kind: "error", row: 4, message: expect.stringMatching(/quote left open/) });
+    expect((res as { message: string }).message.length).toBeLessThan(300);
+  });
 });

@@ -45,6 +45,22 @@ class LimitStream extends Transform {
   }
 }
 
+/**
+ * The name as shown in the import history: the last path segment (busboy already drops the
+ * rest), control characters removed, at most 255 characters without splitting a character.
+ */
+export function cleanFileName(raw: string | undefined): string {
+  const base = (raw ?? "").split(/[\\/]/).pop()?.replace(/[\u0000-\u001f\u007f-\u009f]/g, "").trim() ?? "";
+  const name = base === "" || base === "." || base === ".." ? "upload.csv" : base;
+  // The column holds 255 characters; a UTF-16 slice could split an emoji in two.
+  let out = "";
+  for (const ch of name) {
+    if (out.length + ch.length > 255) break;
+    out += ch;
+  }
+  return out;
+}
+
 export type StoredUpload = {
   sha256: string;
   size: number;
@@ -73,20 +89,35 @@ export async function receiveUpload(request: Request, limit: number = env.IMPORT
   const holder: { stored: Promise<{ sha256: string; size: number; key: string }> | null } = { stored: null };
   let filename = "";
 
-  const bb = busboy({
-    headers: { "content-type": type },
-    limits: { files: 1, fields: 20, fieldSize: 256 * 1024 },
-  });
+  let bb: ReturnType<typeof busboy>;
+  try {
+    bb = busboy({
+      headers: { "content-type": type },
+      limits: { files: 1, fields: 20, fieldSize: 256 * 1024 },
+    });
+  } catch (e) {
+    // busboy throws at once on a content-type it cannot frame (e.g. no boundary).
+    throw new UploadError(400, "bad_multipart", `The upload could not be read: ${e instanceof Error ? e.message : String(e)}.`);
+  }
+  let extraFiles = false;
   const finished = new Promise<void>((resolve, reject) => {
-    bb.on("field", (name, value) => {
+    bb.on("field", (name, value, info) => {
+      if (info.valueTruncated) {
+        reject(new UploadError(413, "field_too_large", `The form field "${name.slice(0, 40)}" is longer than 256 kB.`));
+        return;
+      }
       fields[name] = value;
+    });
+    // A second file would be dropped without a word; one file per upload keeps every file's report.
+    bb.on("filesLimit", () => {
+      extraFiles = true;
     });
     bb.on("file", (name, file, info) => {
       if (name !== "file" || holder.stored) {
         file.resume();
         return;
       }
-      filename = info.filename || "upload.csv";
+      filename = cleanFileName(info.filename);
       const limiter = new LimitStream(limit);
       file.on("error", (e: Error) => limiter.destroy(e));
       // Storage may attach its reader a tick later; an early size error must not go unheard.
@@ -107,6 +138,11 @@ export async function receiveUpload(request: Request, limit: number = env.IMPORT
   body.on("error", (e) => bb.destroy(e));
   body.pipe(bb);
   await finished;
+  if (extraFiles) {
+    // The first file is already stored under its content hash; no import row points to it.
+    await holder.stored?.catch(() => undefined);
+    throw new UploadError(422, "too_many_files", "Send one file per upload; this request had more than one.");
+  }
   if (!holder.stored) throw new UploadError(422, "no_file", 'No file was sent; put it in a part named "file".');
   const result = await holder.stored;
   return { ...result, filename, fields };
