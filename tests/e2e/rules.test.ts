@@ -1,0 +1,78 @@
+import { createRequire } from "node:module";
+import type { Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { DEMO_PASSWORD } from "@/lib/demo/scenario";
+import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { seedDemo } from "@/tests/support/db";
+
+/*
+ * The demo lead previews a threshold change on /rules: the what-if counts by label before and
+ * after, over the demo's synthetic evenings. Nothing is saved.
+ */
+
+const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
+
+let app: RunningApp;
+let browser: BrowserSession;
+
+beforeAll(async () => {
+  await seedDemo();
+  app = await startApp();
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
+
+async function seriousViolations(page: Page): Promise<AxeViolation[]> {
+  await page.evaluate(axeSource);
+  const result = await page.evaluate(async () => {
+    const w = window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<{ violations: AxeViolation[] }> } };
+    return w.axe.run(document, { resultTypes: ["violations"] });
+  });
+  return result.violations
+    .filter((v) => v.impact === "serious" || v.impact === "critical")
+    .map((v) => ({ ...v, nodes: v.nodes.slice(0, 5) }));
+}
+
+describe("the rules page", () => {
+  test("the demo lead previews a threshold change and reads the what-if counts", { timeout: 180_000 }, async () => {
+    const { page } = browser;
+    await page.goto(`${app.url}/sign-in`);
+    await page.getByLabel("E-mail address").fill("lead@demo.gloaming.test");
+    await page.getByLabel("Password").fill(DEMO_PASSWORD);
+    await page.getByRole("button", { name: "Sign in", exact: true }).click();
+    await page.waitForURL(/\/sites$/);
+
+    await page.goto(`${app.url}/rules`);
+    await page.getByRole("heading", { level: 1, name: "Rules" }).waitFor();
+    const threshold = page.getByRole("spinbutton", { name: / value$/ }).first();
+    const before = Number(await threshold.inputValue());
+    await threshold.fill(String(before * 1.5 || 1));
+    await page.getByRole("button", { name: "Preview", exact: true }).click();
+
+    const summary = page.getByText(/of \d+ evenings would change/);
+    await summary.waitFor({ timeout: 120_000 });
+    const total = Number(/of (\d+) evenings/.exec((await summary.textContent()) ?? "")?.[1]);
+    expect(total).toBeGreaterThan(0);
+    // Each column of counts by label covers every evening of the period.
+    const table = page.getByRole("table").filter({ has: page.getByRole("columnheader", { name: "With this edit" }) });
+    const rows = await table.locator("tbody tr").all();
+    expect(rows).toHaveLength(4);
+    let now = 0;
+    let after = 0;
+    for (const row of rows) {
+      const cells = row.getByRole("cell");
+      now += Number(await cells.nth(1).textContent());
+      after += Number(await cells.nth(2).textContent());
+    }
+    expect(now).toBe(total);
+    expect(after).toBe(total);
+    await screenshot(page, "rules-preview");
+    expect(await seriousViolations(page)).toEqual([]);
+  });
+});
