@@ -3,23 +3,73 @@ import type { StoredAnomaly, StoredThreshold, WeakTurbulenceEvening } from "@/li
 import { LabelBadge, LABEL_ORDER, type LabelKey } from "@/lib/ui/label-badge";
 import { KIND_NAMES, SEASON_NAMES } from "@/features/anomalies/schemas";
 
-const th = "px-3 py-2";
-const td = "px-3 py-1.5";
 const head = "bg-surface-sunken text-xs tracking-wide text-ink-muted uppercase";
 
-function Table({ caption, children }: { caption: string; children: React.ReactNode }) {
+/** One column: its header, how a row fills its cell, and whether it holds figures (right-aligned). */
+type Column<T> = {
+  key: string;
+  header: React.ReactNode;
+  cell: (row: T) => React.ReactNode;
+  numeric?: boolean;
+  /** classes of the body cell, e.g. "font-mono text-xs" */
+  className?: string;
+};
+
+/** The table markup every list on this screen shares: caption for screen readers, header row, body. */
+function DataTable<T>({
+  caption,
+  columns,
+  rows,
+  rowKey,
+  rowClassName,
+}: {
+  caption: string;
+  columns: ReadonlyArray<Column<T>>;
+  rows: readonly T[];
+  rowKey: (row: T) => string | number;
+  rowClassName?: (row: T) => string | undefined;
+}) {
   return (
     <div className="overflow-x-auto rounded-lg border border-line">
       <table className="min-w-full text-left text-sm">
         <caption className="sr-only">{caption}</caption>
-        {children}
+        <thead className={head}>
+          <tr>
+            {columns.map((c) => (
+              <th key={c.key} scope="col" className={`px-3 py-2 ${c.numeric ? "text-right" : ""}`}>
+                {c.header}
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody className="divide-y divide-line">
+          {rows.map((row) => (
+            <tr key={rowKey(row)} className={rowClassName?.(row)}>
+              {columns.map((c) => (
+                <td
+                  key={c.key}
+                  className={`px-3 py-1.5 ${c.numeric ? "text-right tabular-nums" : ""} ${c.className ?? ""}`}
+                >
+                  {c.cell(row)}
+                </td>
+              ))}
+            </tr>
+          ))}
+        </tbody>
       </table>
     </div>
   );
 }
 
+const Empty = ({ children }: { children: React.ReactNode }) => (
+  <p className="text-sm text-ink-muted italic">{children}</p>
+);
+
 const fmt = (v: number | null, digits = 2) => (v === null || !Number.isFinite(v) ? "–" : v.toFixed(digits));
 const hhmm = (iso: string) => iso.slice(11, 16);
+const MONO = "font-mono text-xs";
+
+type CountRow = { key: string; series: string; kind: AnomalyKind; byLabel: Record<LabelKey, number> };
 
 /** Counts of anomalies per series and kind, split by the evenings' current labels. */
 export function LabelCounts({
@@ -27,166 +77,130 @@ export function LabelCounts({
 }: {
   counts: Array<{ series: string; kind: AnomalyKind; label: LabelKey; count: number }>;
 }) {
-  if (counts.length === 0) return <p className="text-sm text-ink-muted italic">No anomalies match.</p>;
-  const keys = [...new Set(counts.map((c) => `${c.series}\u0000${c.kind}`))].sort((a, b) => {
-    const [sa, ka] = a.split("\u0000") as [string, AnomalyKind];
-    const [sb, kb] = b.split("\u0000") as [string, AnomalyKind];
-    return sa.localeCompare(sb) || ANOMALY_KINDS.indexOf(ka) - ANOMALY_KINDS.indexOf(kb);
-  });
-  const n = (key: string, label: LabelKey) =>
-    counts.find((c) => `${c.series}\u0000${c.kind}` === key && c.label === label)?.count ?? 0;
+  if (counts.length === 0) return <Empty>No anomalies match.</Empty>;
+  const rows = new Map<string, CountRow>();
+  for (const c of counts) {
+    const key = `${c.series}\u0000${c.kind}`;
+    let row = rows.get(key);
+    if (!row) {
+      row = {
+        key,
+        series: c.series,
+        kind: c.kind,
+        byLabel: { local: 0, stagnant: 0, advective: 0, unclassified: 0 },
+      };
+      rows.set(key, row);
+    }
+    row.byLabel[c.label] += c.count;
+  }
+  const sorted = [...rows.values()].sort(
+    (a, b) =>
+      a.series.localeCompare(b.series) || ANOMALY_KINDS.indexOf(a.kind) - ANOMALY_KINDS.indexOf(b.kind),
+  );
+  const columns: Array<Column<CountRow>> = [
+    { key: "series", header: "Series", cell: (r) => r.series, className: MONO },
+    { key: "kind", header: "Kind", cell: (r) => KIND_NAMES[r.kind] },
+    ...LABEL_ORDER.map((l) => ({
+      key: l,
+      header: <LabelBadge label={l} compact />,
+      cell: (r: CountRow) => r.byLabel[l],
+      numeric: true,
+    })),
+    {
+      key: "all",
+      header: "All",
+      cell: (r) => LABEL_ORDER.reduce((sum, l) => sum + r.byLabel[l], 0),
+      numeric: true,
+      className: "font-semibold",
+    },
+  ];
   return (
-    <Table caption="Anomalies by series, kind and evening label">
-      <thead className={head}>
-        <tr>
-          <th scope="col" className={th}>
-            Series
-          </th>
-          <th scope="col" className={th}>
-            Kind
-          </th>
-          {LABEL_ORDER.map((l) => (
-            <th key={l} scope="col" className={`${th} text-right`}>
-              <LabelBadge label={l} compact />
-            </th>
-          ))}
-          <th scope="col" className={`${th} text-right`}>
-            All
-          </th>
-        </tr>
-      </thead>
-      <tbody className="divide-y divide-line">
-        {keys.map((key) => {
-          const [series, kind] = key.split("\u0000") as [string, AnomalyKind];
-          return (
-            <tr key={key}>
-              <td className={`${td} font-mono text-xs`}>{series}</td>
-              <td className={td}>{KIND_NAMES[kind]}</td>
-              {LABEL_ORDER.map((l) => (
-                <td key={l} className={`${td} text-right tabular-nums`}>
-                  {n(key, l)}
-                </td>
-              ))}
-              <td className={`${td} text-right font-semibold tabular-nums`}>
-                {LABEL_ORDER.reduce((s, l) => s + n(key, l), 0)}
-              </td>
-            </tr>
-          );
-        })}
-      </tbody>
-    </Table>
+    <DataTable
+      caption="Anomalies by series, kind and evening label"
+      columns={columns}
+      rows={sorted}
+      rowKey={(r) => r.key}
+    />
   );
 }
 
 /** The anomalies themselves, each with its evening's current label. */
 export function AnomalyTable({ anomalies, siteId }: { anomalies: StoredAnomaly[]; siteId: number }) {
-  if (anomalies.length === 0) return <p className="text-sm text-ink-muted italic">No anomalies match.</p>;
-  return (
-    <Table caption="Anomalies">
-      <thead className={head}>
-        <tr>
-          <th scope="col" className={th}>
-            Evening
-          </th>
-          <th scope="col" className={th}>
-            Label
-          </th>
-          <th scope="col" className={th}>
-            Series
-          </th>
-          <th scope="col" className={th}>
-            Kind
-          </th>
-          <th scope="col" className={th}>
-            UTC
-          </th>
-          <th scope="col" className={`${th} text-right`}>
-            Peak score
-          </th>
-          <th scope="col" className={`${th} text-right`}>
-            Value / baseline
-          </th>
-        </tr>
-      </thead>
-      <tbody className="divide-y divide-line">
-        {anomalies.map((a) => (
-          <tr key={a.id}>
-            <td className={`${td} font-mono text-xs`}>
-              <a className="hover:underline" href={`/sites/${siteId}/evenings/${a.eveningId}`}>
-                {a.eveningDate}
-              </a>
-            </td>
-            <td className={td}>
-              <LabelBadge label={a.label} />
-              {a.labelSource === "override" ? (
-                <span className="ml-1 text-xs text-ink-muted">(override)</span>
-              ) : null}
-            </td>
-            <td className={`${td} font-mono text-xs`}>{a.series}</td>
-            <td className={td}>{KIND_NAMES[a.kind]}</td>
-            <td className={`${td} font-mono text-xs`}>
-              {hhmm(a.start)}–{hhmm(a.end)}
-            </td>
-            <td className={`${td} text-right tabular-nums`}>{fmt(a.peakScore, 1)}</td>
-            <td className={`${td} text-right tabular-nums`}>
-              {fmt(a.peakValue, 1)} / {fmt(a.baselineValue, 1)}
-            </td>
-          </tr>
-        ))}
-      </tbody>
-    </Table>
-  );
+  if (anomalies.length === 0) return <Empty>No anomalies match.</Empty>;
+  const columns: Array<Column<StoredAnomaly>> = [
+    {
+      key: "evening",
+      header: "Evening",
+      className: MONO,
+      cell: (a) => (
+        <a className="hover:underline" href={`/sites/${siteId}/evenings/${a.eveningId}`}>
+          {a.eveningDate}
+        </a>
+      ),
+    },
+    {
+      key: "label",
+      header: "Label",
+      cell: (a) => (
+        <>
+          <LabelBadge label={a.label} />
+          {a.labelSource === "override" ? (
+            <span className="ml-1 text-xs text-ink-muted">(override)</span>
+          ) : null}
+        </>
+      ),
+    },
+    { key: "series", header: "Series", cell: (a) => a.series, className: MONO },
+    { key: "kind", header: "Kind", cell: (a) => KIND_NAMES[a.kind] },
+    { key: "utc", header: "UTC", cell: (a) => `${hhmm(a.start)}–${hhmm(a.end)}`, className: MONO },
+    { key: "score", header: "Peak score", cell: (a) => fmt(a.peakScore, 1), numeric: true },
+    {
+      key: "value",
+      header: "Value / baseline",
+      cell: (a) => `${fmt(a.peakValue, 1)} / ${fmt(a.baselineValue, 1)}`,
+      numeric: true,
+    },
+  ];
+  return <DataTable caption="Anomalies" columns={columns} rows={anomalies} rowKey={(a) => a.id} />;
 }
 
 /** u* thresholds per season-year and season with the bootstrap spread. */
 export function UstarTable({ thresholds }: { thresholds: StoredThreshold[] }) {
   if (thresholds.length === 0)
-    return (
-      <p className="text-sm text-ink-muted italic">
-        No threshold yet: it needs nighttime u*, FC and air temperature.
-      </p>
-    );
+    return <Empty>No threshold yet: it needs nighttime u*, FC and air temperature.</Empty>;
+  const columns: Array<Column<StoredThreshold>> = [
+    {
+      key: "season",
+      header: "Season",
+      cell: (t) =>
+        t.season === "year"
+          ? `${t.seasonYear} (applied: seasonal maximum)`
+          : `${SEASON_NAMES[t.season]} ${t.seasonYear}`,
+    },
+    { key: "threshold", header: "u* threshold (m/s)", cell: (t) => fmt(t.thresholdMs), numeric: true },
+    {
+      key: "spread",
+      header: "5–95 % (bootstrap)",
+      numeric: true,
+      cell: (t) => (
+        <>
+          {fmt(t.bootstrap.p05)}–{fmt(t.bootstrap.p95)}
+          <span className="ml-1 text-xs font-normal text-ink-muted">
+            ({t.bootstrap.found}/{t.bootstrap.resamples})
+          </span>
+        </>
+      ),
+    },
+    { key: "points", header: "Night points", cell: (t) => t.points, numeric: true },
+  ];
   return (
-    <Table caption="Friction-velocity thresholds">
-      <thead className={head}>
-        <tr>
-          <th scope="col" className={th}>
-            Season
-          </th>
-          <th scope="col" className={`${th} text-right`}>
-            u* threshold (m/s)
-          </th>
-          <th scope="col" className={`${th} text-right`}>
-            5–95 % (bootstrap)
-          </th>
-          <th scope="col" className={`${th} text-right`}>
-            Night points
-          </th>
-        </tr>
-      </thead>
-      <tbody className="divide-y divide-line">
-        {thresholds.map((t) => (
-          <tr
-            key={`${t.seasonYear}-${t.season}`}
-            className={t.season === "year" ? "font-semibold" : undefined}
-          >
-            <td className={td}>
-              {t.season === "year"
-                ? `${t.seasonYear} (applied: seasonal maximum)`
-                : `${SEASON_NAMES[t.season]} ${t.seasonYear}`}
-            </td>
-            <td className={`${td} text-right tabular-nums`}>{fmt(t.thresholdMs)}</td>
-            <td className={`${td} text-right tabular-nums`}>
-              {fmt(t.bootstrap.p05)}–{fmt(t.bootstrap.p95)}
-              <span className="ml-1 text-xs font-normal text-ink-muted">
-                ({t.bootstrap.found}/{t.bootstrap.resamples})
-              </span>
-            </td>
-            <td className={`${td} text-right tabular-nums`}>{t.points}</td>
-          </tr>
-        ))}
-      </tbody>
-    </Table>
+    <DataTable
+      caption="Friction-velocity thresholds"
+      columns={columns}
+      rows={thresholds}
+      rowKey={(t) => `${t.seasonYear}-${t.season}`}
+      rowClassName={(t) => (t.season === "year" ? "font-semibold" : undefined)}
+    />
   );
 }
 
@@ -198,8 +212,27 @@ export function WeakTurbulenceTable({
   evenings: WeakTurbulenceEvening[];
   byLabel: Array<{ label: LabelKey; evenings: number; weakPeriods: number; nightPeriods: number }>;
 }) {
-  if (evenings.length === 0)
-    return <p className="text-sm text-ink-muted italic">No weak-turbulence nights match.</p>;
+  if (evenings.length === 0) return <Empty>No weak-turbulence nights match.</Empty>;
+  const columns: Array<Column<WeakTurbulenceEvening>> = [
+    { key: "evening", header: "Evening", cell: (w) => w.eveningDate, className: MONO },
+    { key: "label", header: "Label", cell: (w) => <LabelBadge label={w.label} /> },
+    {
+      key: "periods",
+      header: "Weak / night half-hours",
+      cell: (w) => `${w.weakPeriods} / ${w.nightPeriods}`,
+      numeric: true,
+    },
+    { key: "threshold", header: "u* threshold (m/s)", cell: (w) => fmt(w.thresholdMs), numeric: true },
+    {
+      key: "span",
+      header: "First–last weak (UTC)",
+      className: MONO,
+      cell: (w) =>
+        w.firstWeak
+          ? `${w.firstWeak.slice(5, 16).replace("T", " ")}–${(w.lastWeak ?? "").slice(11, 16)}`
+          : "–",
+    },
+  ];
   return (
     <div className="space-y-4">
       <ul className="flex flex-wrap gap-4 text-sm">
@@ -212,46 +245,12 @@ export function WeakTurbulenceTable({
           </li>
         ))}
       </ul>
-      <Table caption="Weak-turbulence nights">
-        <thead className={head}>
-          <tr>
-            <th scope="col" className={th}>
-              Evening
-            </th>
-            <th scope="col" className={th}>
-              Label
-            </th>
-            <th scope="col" className={`${th} text-right`}>
-              Weak / night half-hours
-            </th>
-            <th scope="col" className={`${th} text-right`}>
-              u* threshold (m/s)
-            </th>
-            <th scope="col" className={th}>
-              First–last weak (UTC)
-            </th>
-          </tr>
-        </thead>
-        <tbody className="divide-y divide-line">
-          {evenings.map((w) => (
-            <tr key={w.eveningId}>
-              <td className={`${td} font-mono text-xs`}>{w.eveningDate}</td>
-              <td className={td}>
-                <LabelBadge label={w.label} />
-              </td>
-              <td className={`${td} text-right tabular-nums`}>
-                {w.weakPeriods} / {w.nightPeriods}
-              </td>
-              <td className={`${td} text-right tabular-nums`}>{fmt(w.thresholdMs)}</td>
-              <td className={`${td} font-mono text-xs`}>
-                {w.firstWeak
-                  ? `${w.firstWeak.slice(5, 16).replace("T", " ")}–${(w.lastWeak ?? "").slice(11, 16)}`
-                  : "–"}
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </Table>
+      <DataTable
+        caption="Weak-turbulence nights"
+        columns={columns}
+        rows={evenings}
+        rowKey={(w) => w.eveningId}
+      />
     </div>
   );
 }
