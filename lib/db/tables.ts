@@ -50,7 +50,13 @@ export type AuditLogRow = {
   created_at: Date;
 };
 
-export type SignInAttemptRow = { id: number; email: string; ip: string; succeeded: boolean | 0 | 1; created_at: Date };
+export type SignInAttemptRow = {
+  id: number;
+  email: string;
+  ip: string;
+  succeeded: boolean | 0 | 1;
+  created_at: Date;
+};
 
 /*
  * Tables of the data model (issue 4 onwards). JSON columns are `unknown`: mysql2 may hand them
@@ -93,7 +99,8 @@ export type JobRow = {
   finished_at: Date | null;
 };
 
-export type ImportStatus = "pending" | "queued" | "running" | "landed" | "failed" | "refused" | "deleted" | "purged";
+export type ImportStatus =
+  "pending" | "queued" | "running" | "landed" | "failed" | "refused" | "deleted" | "purged";
 
 /**
  * Not yet in the registry: registering it breaks callers that insert `status` as a plain string
@@ -120,7 +127,13 @@ export type ImportTableRow = {
   finished_at: Date | null;
 };
 
-export type SiteSeriesRow = { site_id: number; slot: number; name: string; unit: string; kind: "concentration" | "flux" };
+export type SiteSeriesRow = {
+  site_id: number;
+  slot: number;
+  name: string;
+  unit: string;
+  kind: "concentration" | "flux";
+};
 
 /** One averaging period of one site; NULL = missing. Units of lib/series/types.ts. */
 export type HalfHourRow = {
@@ -203,7 +216,12 @@ export type ApiTokenRow = {
   revoked_at: Date | null;
 };
 
-export type ImportTemplateRow = { site_id: number; template: unknown; updated_by: string | null; updated_at: Date };
+export type ImportTemplateRow = {
+  site_id: number;
+  template: unknown;
+  updated_by: string | null;
+  updated_at: Date;
+};
 
 export type MailOutboxRow = {
   id: number;
@@ -309,11 +327,7 @@ export type WeakTurbulenceRow = {
  * What a column accepts on write: its read type or raw SQL (db.fn.now(), db.raw(...)); a
  * DATETIME/DATE also takes MariaDB text ("2024-03-01 00:30:00"), a flag also 0/1.
  */
-type WriteValue<V> =
-  | V
-  | Knex.Raw
-  | (V extends Date ? string : never)
-  | (V extends boolean ? number : never);
+type WriteValue<V> = V | Knex.Raw | (V extends Date ? string : never) | (V extends boolean ? number : never);
 type Writable<T> = { [K in keyof T]: WriteValue<T[K]> };
 
 /** Columns filled by the database (auto ids, defaults, nullable ones) are optional on insert. */
@@ -335,7 +349,10 @@ declare module "knex/types/tables" {
     user_sessions: Table<UserSessionRow, never>;
     research_groups: Table<ResearchGroupRow, "id" | "created_at">;
     memberships: Table<MembershipRow, "created_at">;
-    sites: Table<SiteRow, "id" | "created_at" | "updated_at" | "notes" | "displacement_height_m" | "active_rule_set_id">;
+    sites: Table<
+      SiteRow,
+      "id" | "created_at" | "updated_at" | "notes" | "displacement_height_m" | "active_rule_set_id"
+    >;
     audit_log: Table<AuditLogRow, "id" | "created_at" | "detail">;
     sign_in_attempts: Table<SignInAttemptRow, "id" | "created_at">;
     rule_sets: Table<RuleSetRow, "id" | "created_at" | NullableKeys<RuleSetRow>>;
@@ -367,7 +384,10 @@ declare module "knex/types/tables" {
     >;
     invitations: Table<InvitationRow, "id" | "sent_at" | "created_at" | NullableKeys<InvitationRow>>;
     password_resets: Table<PasswordResetRow, "id" | "created_at" | NullableKeys<PasswordResetRow>>;
-    notification_preferences: Table<NotificationPreferencesRow, "import_notices" | "weekly_digest" | "updated_at">;
+    notification_preferences: Table<
+      NotificationPreferencesRow,
+      "import_notices" | "weekly_digest" | "updated_at"
+    >;
     anomalies: Table<AnomalyRow, "id" | "detected_at" | NullableKeys<AnomalyRow>>;
     ustar_thresholds: Table<
       UstarThresholdRow,
@@ -380,6 +400,9 @@ declare module "knex/types/tables" {
       | "computed_at"
       | NullableKeys<UstarThresholdRow>
     >;
-    weak_turbulence: Table<WeakTurbulenceRow, "flux_series" | "computed_at" | NullableKeys<WeakTurbulenceRow>>;
+    weak_turbulence: Table<
+      WeakTurbulenceRow,
+      "flux_series" | "computed_at" | NullableKeys<WeakTurbulenceRow>
+    >;
   }
 }

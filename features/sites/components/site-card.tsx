@@ -84,7 +84,9 @@ export function SiteCard({ site }: { site: SiteSummary }) {
                 {LABEL_ORDER.map((l) => (
                   <li key={l} className="flex items-center justify-between gap-2">
                     <LabelBadge label={l} />
-                    <span className="font-mono text-xs text-ink tabular-nums">{site.labelCounts?.[l] ?? 0}</span>
+                    <span className="font-mono text-xs text-ink tabular-nums">
+                      {site.labelCounts?.[l] ?? 0}
+                    </span>
                   </li>
                 ))}
               </ul>

@@ -65,7 +65,9 @@ describe.each([
   test(`the lead: 204 and an audit row; on a revoked invitation 409 not_pending`, async () => {
     const { group, client, invitationId } = await invited();
     expect((await call(client, group.id, invitationId)).status).toBe(204);
-    const actions = await db("audit_log").where({ group_id: group.id, entity_type: "invitation" }).pluck("action");
+    const actions = await db("audit_log")
+      .where({ group_id: group.id, entity_type: "invitation" })
+      .pluck("action");
     expect(actions).toContain(`invitation.${name}`);
     if (name === "resend") expect((await revoke(client, group.id, invitationId)).status).toBe(204);
     const again = await call(client, group.id, invitationId);
