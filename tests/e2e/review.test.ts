@@ -3,7 +3,7 @@ import type { Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
 import { DEMO_GROUP_NAME, DEMO_PASSWORD, DEMO_SITE } from "@/lib/demo/scenario";
-import { seedDemoData } from "@/db/seeds/02_demo_data";
+import { DEMO_INJECTED_RISES, seedDemoData } from "@/db/seeds/02_demo_data";
 import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
 
 /*
@@ -39,8 +39,8 @@ async function seriousViolations(page: Page): Promise<AxeViolation[]> {
   await page.evaluate(axeSource);
   const result = await page.evaluate(async () => {
     const w = window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<{ violations: AxeViolation[] }> } };
-    // The page's own content; the shell around it has its own browser test.
-    return w.axe.run({ include: [["#main"]] }, { resultTypes: ["violations"] });
+    // The whole document: the shell (navigation, account and group buttons) as well as the page.
+    return w.axe.run(document, { resultTypes: ["violations"] });
   });
   return result.violations
     .filter((v) => v.impact === "serious" || v.impact === "critical")
@@ -65,6 +65,15 @@ describe("reviewing with the keyboard as the demo analyst", () => {
     await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
     await page.getByRole("grid", { name: "June 2024" }).waitFor();
     await page.locator('a[data-date="2024-06-03"]').waitFor();
+    // The demo's known post-sunset isoprene rise (synthetic truth) carries the anomaly marker,
+    // named in the day's focus text and shown as a glyph.
+    const risen = "2024-06-25";
+    expect(DEMO_INJECTED_RISES).toContain(risen);
+    await page.locator(`a[data-date="${risen}"][aria-label*="ISOPRENE rise after sunset"]`).waitFor();
+    expect(await page.locator(`a[data-date="${risen}"]`).getAttribute("aria-label")).toMatch(
+      /; \d+ anomal(y|ies): .*ISOPRENE rise after sunset/,
+    );
+    expect(await page.locator(`a[data-date="${risen}"] [title*="ISOPRENE rise after sunset"]`).count()).toBe(1);
 
     // Tab to the calendar's single tab stop, then arrows: right one day, down one week.
     let date: string | null = null;
@@ -125,8 +134,16 @@ describe("reviewing with the keyboard as the demo analyst", () => {
 
   test("the review queue and the twelve-month view render with the override in place", { timeout: 60_000 }, async () => {
     const { page } = browser;
+    // The evening of a known rise: its isoprene chart shows the anomaly span.
+    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
+    await page.locator('a[data-date="2024-06-25"]').click();
+    await page.waitForURL(/\/evenings\/\d+$/);
+    await page.getByRole("img", { name: /^ISOPRENE .*rise after sunset/ }).waitFor();
+    await screenshot(page, "review-evening-anomaly");
+
     await page.goto(`${app.url}/sites/${siteId}/review?month=2024-06`);
     await page.getByRole("list", { name: "Evenings by need of review" }).waitFor();
+    await page.getByText(/anomal(y|ies): ISOPRENE rise after sunset/).first().waitFor();
     await page.keyboard.press("j");
     await screenshot(page, "review-queue");
     await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06&view=year`);
