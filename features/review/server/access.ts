@@ -1,4 +1,5 @@
 import "server-only";
+import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
@@ -23,13 +24,6 @@ export async function caller(_request?: Request): Promise<SessionUser> {
   return (await requireSession()).user;
 }
 
-async function roleIn(userId: string, groupId: number): Promise<Role | null> {
-  const row: { role: string } | undefined = await db("memberships")
-    .where({ user_id: userId, group_id: groupId })
-    .first("role");
-  return row && isRole(row.role) ? row.role : null;
-}
-
 function check(role: Role | null, minimum: Role): Role {
   if (role === null) throw new AuthError("not_found");
   if (!roleAtLeast(role, minimum)) throw new AuthError("forbidden");
@@ -38,6 +32,7 @@ function check(role: Role | null, minimum: Role): Role {
 
 type SiteRow = {
   id: number;
+  role: string | null;
   group_id: number;
   name: string;
   latitude: number;
@@ -56,7 +51,23 @@ function toReviewSite(r: SiteRow): ReviewSite {
   };
 }
 
-const SITE_COLUMNS = ["id", "group_id", "name", "latitude", "longitude", "utc_offset_hours"];
+// The site and the caller's membership come back in one round trip (a left join: no row means no
+// such site, a null role means the caller is not in its group).
+function siteColumns(): string[] {
+  return [...["id", "group_id", "name", "latitude", "longitude", "utc_offset_hours"].map((c) => `s.${c}`), "m.role"];
+}
+
+function withMembership(q: Knex.QueryBuilder, userId: string): Knex.QueryBuilder {
+  return q.leftJoin("memberships as m", function () {
+    this.on("m.group_id", "=", "s.group_id").andOn("m.user_id", "=", db.raw("?", [userId]));
+  });
+}
+
+function judged(row: SiteRow | undefined, minimum: Role): { site: ReviewSite; role: Role } {
+  if (!row) throw new AuthError("not_found");
+  const role = check(row.role !== null && isRole(row.role) ? row.role : null, minimum);
+  return { site: toReviewSite(row), role };
+}
 
 /** A site `user` may see with at least `minimum`, and their role. */
 export async function siteAccess(
@@ -64,10 +75,10 @@ export async function siteAccess(
   siteId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: SiteRow | undefined = await db("sites").where({ id: siteId }).first(SITE_COLUMNS);
-  if (!row) throw new AuthError("not_found");
-  const role = check(await roleIn(user.id, row.group_id), minimum);
-  return { site: toReviewSite(row), role };
+  const row: SiteRow | undefined = await withMembership(db("sites as s").where("s.id", siteId), user.id).first(
+    siteColumns(),
+  );
+  return judged(row, minimum);
 }
 
 /** The site of an evening `user` may see with at least `minimum`, and their role. */
@@ -76,11 +87,9 @@ export async function eveningAccess(
   eveningId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: SiteRow | undefined = await db("evenings as e")
-    .join("sites as s", "s.id", "e.site_id")
-    .where("e.id", eveningId)
-    .first(SITE_COLUMNS.map((c) => `s.${c}`));
-  if (!row) throw new AuthError("not_found");
-  const role = check(await roleIn(user.id, row.group_id), minimum);
-  return { site: toReviewSite(row), role };
+  const row: SiteRow | undefined = await withMembership(
+    db("evenings as e").join("sites as s", "s.id", "e.site_id").where("e.id", eveningId),
+    user.id,
+  ).first(siteColumns());
+  return judged(row, minimum);
 }

@@ -18,6 +18,8 @@ import type {
 import { thresholdRows } from "@/features/review/thresholds";
 import { rankQueue, type QueueInput } from "@/features/review/queue";
 import type { ReviewSite } from "@/features/review/server/access";
+import { eveningsStamp, StampedCache } from "@/lib/evenings/stamp";
+import { TRACER_SLOTS } from "@/lib/evenings/load";
 import { anomaliesInRange, weakTurbulenceForSite } from "@/lib/anomalies/server/queries";
 import { flagsByDate } from "@/features/review/flags";
 
@@ -98,28 +100,61 @@ export async function listEvenings(siteId: number, range: DateRange): Promise<Ev
   return rows.map(toSummary);
 }
 
-// Stored JSON goes out as it is: parsing and re-serialising a site-year of metrics is most of the
-// cost of the calendar endpoint. MariaDB's CHECK (json_valid) guarantees the text is JSON.
-function rawJson(v: unknown, fallback: string): string {
-  if (typeof v === "string") return v;
-  return v === null || v === undefined ? fallback : JSON.stringify(v);
+// Metrics leave the calendar with four significant digits: the stored doubles carry 17, which
+// nearly doubled the site-year answer, and no reader of a month grid needs more. The evening
+// endpoint keeps them whole.
+function roundedJson(v: unknown, fallback: unknown): string {
+  const value = parsed<unknown>(v, fallback);
+  return JSON.stringify(value, (_k, x: unknown) =>
+    typeof x === "number" && !Number.isInteger(x) && Number.isFinite(x) ? Number(x.toPrecision(4)) : x,
+  );
 }
 
-/** The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`) as JSON text. */
-export async function listEveningsJson(siteId: number, range: DateRange): Promise<string> {
-  const rows: SummaryRow[] = await db("evenings")
-    .where("site_id", siteId)
-    .whereBetween("local_date", [range.from, range.to])
-    .orderBy("local_date")
-    .select(SUMMARY_COLUMNS);
+/** A calendar answer: the JSON body as bytes and its entity tag. */
+export type CalendarBody = { body: Uint8Array<ArrayBuffer>; etag: string };
+
+// Built bodies, valid only at the change stamp of their site and period (lib/evenings/stamp.ts).
+// A site-year is about 200 kB; 48 MB holds every month and year a department has open.
+const calendarCache = new StampedCache<CalendarBody>(400, 48 * 1024 * 1024);
+// Bumped when the shape of the body changes, so that no browser keeps an old body on a 304.
+const CALENDAR_FORMAT = "c1";
+
+/** Empties the calendar cache (tests). */
+export function clearCalendarCache(): void {
+  calendarCache.clear();
+}
+
+async function buildCalendar(siteId: number, range: DateRange) {
+  // One snapshot for the stamp and the rows, so the entry is exactly the state the stamp names.
+  const { stamp, rows } = await db.transaction(async (trx) => {
+    const at = await eveningsStamp({ siteIds: [siteId], ...range }, trx);
+    const found: SummaryRow[] = await trx("evenings")
+      .where("site_id", siteId)
+      .whereBetween("local_date", [range.from, range.to])
+      .orderBy("local_date")
+      .select(SUMMARY_COLUMNS);
+    return { stamp: at, rows: found };
+  });
   const parts = rows.map(
     (r) =>
       `{"id":${Number(r.id)},"date":"${r.date}","label":"${r.final_label}","autoLabel":"${r.auto_label}","source":"${r.label_source}",` +
       `"sunsetUtc":${JSON.stringify(r.sunset_utc)},"civilDuskUtc":${JSON.stringify(r.civil_dusk_utc)},"rule":${JSON.stringify(r.rule)},` +
-      `"reasons":${rawJson(r.reasons, "[]")},"metrics":${rawJson(r.metrics, JSON.stringify(emptyMetrics()))},` +
+      `"reasons":${roundedJson(r.reasons, [])},"metrics":${roundedJson(r.metrics, emptyMetrics())},` +
       `"reviewed":${r.reviewed ? "true" : "false"},"version":${Number(r.version)}}`,
   );
-  return `{"evenings":[${parts.join(",")}]}`;
+  const body = new TextEncoder().encode(`{"evenings":[${parts.join(",")}]}`);
+  return { stamp, value: { body, etag: `"${CALENDAR_FORMAT}.${stamp}"` }, bytes: body.byteLength };
+}
+
+/**
+ * The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`, metrics to four
+ * significant digits) and its ETag. Each call reads the period's change stamp (one small
+ * query) and serves the body built at that stamp from memory, building it when the evenings
+ * changed since: a change is visible to the very next request.
+ */
+export async function listEveningsBody(siteId: number, range: DateRange): Promise<CalendarBody> {
+  const stamp = await eveningsStamp({ siteIds: [siteId], ...range });
+  return calendarCache.get(`${siteId}|${range.from}|${range.to}`, stamp, () => buildCalendar(siteId, range));
 }
 
 /** First and last local date with an evening at a site, or null when it has none. */
@@ -164,6 +199,8 @@ type DetailRow = SummaryRow & {
   override_note: string | null;
   reviewed_by_name: string | null;
   reviewed_at: string | null;
+  previous_ref: string | null;
+  next_ref: string | null;
 };
 
 const MEASURES: Array<{
@@ -190,23 +227,30 @@ const MEASURES: Array<{
   { col: "co2", key: "CO2", name: "CO₂", unit: "µmol/mol" },
 ];
 
+const TRACER_COLUMNS = Array.from({ length: TRACER_SLOTS }, (_, i) => `tracer_${i + 1}`);
+
 /** The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. */
 export async function eveningSeries(siteId: number, centreMs: number): Promise<EveningSeries> {
-  const tracers: Array<{
-    slot: number;
-    name: string;
-    unit: string;
-  }> = await db("site_series").where({ site_id: siteId }).orderBy("slot").select("slot", "name", "unit");
-  const cols = [...MEASURES.map((m) => m.col), ...tracers.map((t) => `tracer_${t.slot}`)];
+  // Every tracer slot is read beside the names of the slots in use, so neither waits for the other.
+  const cols = [...MEASURES.map((m) => m.col), ...TRACER_COLUMNS];
   // Periods that overlap the window: a half-hour starting 30 min before it still reaches in.
   const fromMs = centreMs - 4 * HOUR_MS - 30 * 60_000;
   const toMs = centreMs + 4 * HOUR_MS;
-  const rows: Array<Record<string, number | null> & { t: number | string }> = await db("half_hours")
-    .where("site_id", siteId)
-    .where("start_utc", ">", new Date(fromMs))
-    .where("start_utc", "<", new Date(toMs))
-    .orderBy("start_utc")
-    .select([db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"), ...cols]);
+  const [tracers, rows] = await Promise.all([
+    db("site_series")
+      .where({ site_id: siteId })
+      .orderBy("slot")
+      .select<Array<{ slot: number; name: string; unit: string }>>("slot", "name", "unit"),
+    db("half_hours")
+      .where("site_id", siteId)
+      .where("start_utc", ">", new Date(fromMs))
+      .where("start_utc", "<", new Date(toMs))
+      .orderBy("start_utc")
+      .select<Array<Record<string, number | null> & { t: number | string }>>([
+        db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"),
+        ...cols,
+      ]),
+  ]);
   const starts = rows.map((r) => Number(r.t));
   let periodMinutes = 30;
   for (let i = 1; i < starts.length; i++)
@@ -264,13 +308,19 @@ async function history(eveningId: number): Promise<HistoryEntry[]> {
   }));
 }
 
-async function neighbour(siteId: number, date: string, dir: "previous" | "next") {
-  const row: { id: number; date: string } | undefined = await db("evenings")
-    .where("site_id", siteId)
-    .where("local_date", dir === "previous" ? "<" : ">", date)
-    .orderBy("local_date", dir === "previous" ? "desc" : "asc")
-    .first("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS date"));
-  return row ? { id: Number(row.id), date: row.date } : null;
+// The previous and next evening of the site, as "id date", read by the detail query itself.
+function neighbourRef(dir: "previous" | "next") {
+  const [op, order] = dir === "previous" ? ["<", "DESC"] : [">", "ASC"];
+  return db.raw(
+    `(SELECT CONCAT(n.id, ' ', DATE_FORMAT(n.local_date, '%Y-%m-%d')) FROM evenings n
+       WHERE n.site_id = e.site_id AND n.local_date ${op} e.local_date ORDER BY n.local_date ${order} LIMIT 1) AS ${dir}_ref`,
+  );
+}
+
+function neighbourOf(ref: string | null): { id: number; date: string } | null {
+  if (!ref) return null;
+  const [id, date] = ref.split(" ");
+  return id && date ? { id: Number(id), date } : null;
 }
 
 /** Everything the evening page shows. Throws AuthError("not_found") for an unknown id. */
@@ -289,6 +339,8 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
       "e.override_note",
       "r.display_name as reviewed_by_name",
       db.raw(`DATE_FORMAT(e.reviewed_at, ${ISO_UTC}) AS reviewed_at`),
+      neighbourRef("previous"),
+      neighbourRef("next"),
     ]);
   if (!row) throw new AuthError("not_found");
   const summary = toSummary(row);
@@ -302,12 +354,9 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
     startMs: centreMs + rules.windows[w].startMinutes * 60_000,
     endMs: centreMs + rules.windows[w].endMinutes * 60_000,
   }));
-  const [events, series, previous, next] = await Promise.all([
-    history(eveningId),
-    eveningSeries(site.id, centreMs),
-    neighbour(site.id, summary.date, "previous"),
-    neighbour(site.id, summary.date, "next"),
-  ]);
+  const [events, series] = await Promise.all([history(eveningId), eveningSeries(site.id, centreMs)]);
+  const previous = neighbourOf(row.previous_ref);
+  const next = neighbourOf(row.next_ref);
   return {
     evening: {
       ...summary,

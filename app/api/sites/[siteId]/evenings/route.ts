@@ -2,9 +2,13 @@ import { AuthError } from "@/lib/auth/session";
 import { handleRouteError } from "@/lib/http/respond";
 import { idSchema, rangeSchema } from "@/features/review/schemas";
 import { caller, siteAccess } from "@/features/review/server/access";
-import { listEveningsJson } from "@/features/review/server/queries";
+import { listEveningsBody } from "@/features/review/server/queries";
 
 type Context = { params: Promise<{ siteId: string }> };
+
+// private: the answer depends on who asks; no-cache: the browser asks again every time and gets
+// a 304 while the ETag (the evenings' change stamp) still matches.
+const CACHE_CONTROL = "private, no-cache";
 
 // GET /api/sites/:siteId/evenings?from=YYYY-MM-DD&to=YYYY-MM-DD - the labelled evenings of a period
 export async function GET(request: Request, ctx: Context): Promise<Response> {
@@ -15,8 +19,13 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
     await siteAccess(user, siteId.data);
     const q = new URL(request.url).searchParams;
     const range = rangeSchema.parse({ from: q.get("from") ?? undefined, to: q.get("to") ?? undefined });
-    return new Response(await listEveningsJson(siteId.data, range), {
-      headers: { "content-type": "application/json; charset=utf-8" },
+    const { body, etag } = await listEveningsBody(siteId.data, range);
+    const seen = request.headers.get("if-none-match");
+    if (seen !== null && seen.split(",").some((t) => t.trim().replace(/^W\//, "") === etag)) {
+      return new Response(null, { status: 304, headers: { etag, "cache-control": CACHE_CONTROL } });
+    }
+    return new Response(body, {
+      headers: { "content-type": "application/json; charset=utf-8", etag, "cache-control": CACHE_CONTROL },
     });
   } catch (err) {
     return handleRouteError(err);
