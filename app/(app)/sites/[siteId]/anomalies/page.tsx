@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
 import {
   anomalyCountsByLabel,
   anomalySeriesOfSite,
@@ -9,6 +8,7 @@ import {
   ustarThresholdsForSite,
   weakTurbulenceForSite,
 } from "@/lib/anomalies/server/queries";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 import { SiteTabs } from "@/features/review/components/site-tabs";
 import { anomalyFiltersSchema, type AnomalyFiltersInput } from "@/features/anomalies/schemas";
@@ -66,12 +66,8 @@ export default async function AnomaliesPage({ params, searchParams }: Props) {
 
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title="Anomalies"
         description="Excursions of each concentration and flux series around sunset against a moving baseline of the same half-hour on nearby days (median and 1.4826 MAD, the evening itself left out; modified z beyond the rule set's threshold for two or more half-hours), and nighttime fluxes under weak turbulence. Each carries its evening's current label."
       />

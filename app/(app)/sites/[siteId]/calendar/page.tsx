@@ -1,8 +1,7 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { HydrationBoundary, QueryClient, dehydrate } from "@tanstack/react-query";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 import { CalendarView } from "@/features/review/components/calendar-view";
 import { SiteTabs } from "@/features/review/components/site-tabs";
@@ -35,12 +34,8 @@ export default async function CalendarPage({ params, searchParams }: Props) {
 
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title="Calendar of evenings"
         description={
           span

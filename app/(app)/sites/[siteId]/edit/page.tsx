@@ -1,8 +1,7 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { roleAtLeast } from "@/lib/auth/roles";
 import { FormMessage } from "@/lib/ui/field";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { SiteForm } from "@/features/sites/components/site-form";
 import { updateSiteAction } from "@/features/sites/server/actions";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
@@ -14,14 +13,7 @@ export default async function EditSitePage({ params }: { params: Promise<{ siteI
   const back = `/sites/${site.id}`;
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={back} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
-        title="Edit site"
-      />
+      <SitePageHeader site={site} title="Edit site" />
       <div className="max-w-3xl card p-6">
         {roleAtLeast(role, "lead") ? (
           <SiteForm

@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 import { eveningExtent } from "@/features/seasons/server/queries";
 import { ExportForm } from "@/features/exports/components/export-form";
@@ -15,12 +14,8 @@ export default async function ExportPage({ params }: Props) {
   const extent = await eveningExtent([site.id]);
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title="Export tagged evenings"
         description="One zip for a paper or a script: the evenings with their labels and metrics as CSV, optionally every half-hour with its evening's label, and a provenance file that says how the labels came about."
       />

@@ -1,9 +1,8 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { roleAtLeast } from "@/lib/auth/roles";
 import { env } from "@/lib/env";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { SiteTabs } from "@/features/review/components/site-tabs";
 import { ImportHistory } from "@/features/imports/components/import-history";
 import { ImportWorkbench } from "@/features/imports/components/import-workbench";
@@ -24,12 +23,8 @@ export default async function ImportPage({ params }: Props) {
   const today = new Date().toISOString().slice(0, 10);
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title="Import"
         description={
           canImport

@@ -1,7 +1,6 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 import { RegimeChart } from "@/features/review/components/regime-chart";
 import { SiteTabs } from "@/features/review/components/site-tabs";
@@ -19,12 +18,8 @@ export default async function RegimePage({ params }: Props) {
   const points = await getRegimePoints(site.id);
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title="Turbulence against wind speed"
         description="Each mark is one evening: σw against the mean wind speed of its evening window. Below a threshold speed turbulence stays weak; above it, it grows with the wind."
       />

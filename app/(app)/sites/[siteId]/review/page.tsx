@@ -3,7 +3,7 @@ import Link from "next/link";
 import { HydrationBoundary, QueryClient, dehydrate } from "@tanstack/react-query";
 import { roleAtLeast } from "@/lib/auth/roles";
 import { LabelCaution } from "@/lib/ui/caution";
-import { PageHeader } from "@/lib/ui/page-header";
+import { SitePageHeader } from "@/features/sites/components/site-page-header";
 import { loadSiteForPage } from "@/features/sites/server/page-data";
 import { ReviewQueue } from "@/features/review/components/review-queue";
 import { SiteTabs } from "@/features/review/components/site-tabs";
@@ -34,12 +34,8 @@ export default async function ReviewPage({ params, searchParams }: Props) {
 
   return (
     <>
-      <PageHeader
-        eyebrow={
-          <Link href={`/sites/${site.id}`} className="hover:underline">
-            ← {site.name}
-          </Link>
-        }
+      <SitePageHeader
+        site={site}
         title={`Review queue · ${monthTitle(month)}`}
         description="Evenings that most need a person come first: unclassified ones, then those closest to a threshold of the rule that decided. Reviewed and overridden evenings go last."
         actions={
