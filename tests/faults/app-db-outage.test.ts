@@ -4,7 +4,13 @@
  * page in the browser (no stack, no SQL), and both work again after the restart.
  */
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import {
+  launchBrowser,
+  screenshot,
+  startApp,
+  type BrowserSession,
+  type RunningApp,
+} from "@/tests/support/browser";
 import { startPrivateDb, type PrivateDb } from "@/tests/faults/private-db";
 
 let server: PrivateDb;
