@@ -7,7 +7,7 @@ import { spawn, spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { createReadStream, createWriteStream, mkdtempSync, rmSync, statSync } from "node:fs";
 import { once } from "node:events";
-import { tmpdir } from "node:os";
+import { loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { createConnection } from "mysql2/promise";
@@ -182,6 +182,11 @@ async function inner(dir: string): Promise<void> {
     `  store original (sha256 + copy): ${((t1 - t0) / 1000).toFixed(2)} s; ${Object.entries(phases)
       .map(([k, v]) => `${k} ${(v / 1000).toFixed(2)} s`)
       .join(", ")}`,
+  );
+  console.log(
+    `  load average (1, 5, 15 min) at the end of the import: ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(", ")} on 2 cores`,
   );
   console.log(`  end to end: ${total.toFixed(2)} s, ${(rows / total).toFixed(0)} rows/s  [target < 20 s]`);
   console.log(`  peak RSS: ${mb(peak)} MB (before ${mb(rssBefore)} MB)  [target < 400 MB]`);
