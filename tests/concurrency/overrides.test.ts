@@ -126,6 +126,40 @@ describe("concurrent changes to one evening", () => {
     expect(Number(audits[0]?.n)).toBe(1);
   });
 
+  test("five evenings raced at once, 20 overrides each: one winner per evening, histories independent", async () => {
+    const { group } = await scene("local");
+    const site = await createSiteFor(group.id);
+    const ids = await insertEvenings(
+      site.id,
+      ["2025-08-01", "2025-08-02", "2025-08-03", "2025-08-04", "2025-08-05"].map((date) => ({
+        date,
+        autoLabel: "local" as const,
+      })),
+    );
+    const clients = await people(
+      group.id,
+      Array.from({ length: 20 }, () => "analyst"),
+    );
+    const answers = await Promise.all(
+      ids.flatMap((id) =>
+        clients.map((c, i) =>
+          send(c, id, "override", {
+            label: i % 2 ? "stagnant" : "advective",
+            note: `race ${i}`,
+            version: 1,
+          }).then((a) => ({ id, ...a })),
+        ),
+      ),
+    );
+    for (const id of ids) {
+      const mine = answers.filter((a) => a.id === id);
+      expect(mine.filter((a) => a.status === 200)).toHaveLength(1);
+      expect(mine.filter((a) => a.status === 409)).toHaveLength(19);
+      const events = await expectConsistent(id, 1);
+      expect(events.map((e) => e.kind)).toEqual(["auto", "override"]);
+    }
+  });
+
   test("a chain of sequential overrides and reverts keeps a gap-free, append-only history", async () => {
     const { id, group, lead } = await scene("stagnant");
     const [analyst] = await people(group.id, ["analyst"]);
