@@ -172,8 +172,14 @@ export async function setActiveGroup(groupId: number): Promise<Membership> {
   return { groupId, groupName: group.name, role };
 }
 
-/** Starts a session for `userId` and sets the session cookie (actions and route handlers only). */
+/**
+ * Starts a session for `userId` and sets the session cookie (actions and route handlers only).
+ * A session cookie the browser already carried is invalidated first: the id after sign-in is
+ * always new, so a planted or stale id never becomes a signed-in one.
+ */
 export async function startSession(userId: string): Promise<string> {
+  const previous = (await cookies()).get(lucia.sessionCookieName)?.value;
+  if (previous) await lucia.invalidateSession(previous);
   const session = await lucia.createSession(userId, {});
   const c = lucia.createSessionCookie(session.id);
   (await cookies()).set(c.name, c.value, c.attributes);

@@ -128,6 +128,9 @@ export async function receiveUpload(request: Request, limit: number = env.IMPORT
       stored.catch((e: unknown) => {
         file.resume();
         reject(e instanceof Error ? e : new Error(String(e)));
+        // Stop reading the request: a sender without Content-Length could otherwise stream on for ever.
+        body.unpipe(bb);
+        body.destroy();
       });
       holder.stored = stored;
     });
