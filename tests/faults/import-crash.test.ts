@@ -124,7 +124,8 @@ async function killMidWrite(
   child.kill("SIGSTOP");
   const partial = await uncommittedRows(importId);
   expect(partial).toBeGreaterThan(0);
-  expect(partial).toBeLessThan(DAYS * 48);
+  // Usually a part of the file; all of it only if the freeze fell between the last row and the commit.
+  expect(partial).toBeLessThanOrEqual(DAYS * 48);
   // Nothing of it is committed: a normal read sees none of the rows.
   expect(await halfHourCount(siteId)).toBe(0);
   child.kill("SIGKILL");
