@@ -1,11 +1,15 @@
 /*
- * The review benchmark's work (see review.bench.ts): a throwaway database with the synthetic
- * demo data, `next start` against it, autocannon at 20 connections per endpoint, figures printed,
- * everything removed afterwards.
+ * The work of the review and load benchmarks (review.bench.ts, load.bench.ts): a throwaway
+ * database with the synthetic demo data, `next start` against it, autocannon per endpoint,
+ * figures printed, everything removed afterwards. `BENCH_PLAN` chooses the plan: "review" (20
+ * connections, 8 s, one session) or "load" (50 connections, 30 s, each connection its own
+ * signed-in person). Besides latency it prints the CPU time the server process spent per
+ * request, which other work on the machine does not inflate the way it does latency, and the
+ * load average at the end of each run.
  */
 import { spawn, spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
-import { existsSync, mkdtempSync, rmSync } from "node:fs";
+import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { fileURLToPath } from "node:url";
 import { join } from "node:path";
@@ -23,17 +27,23 @@ type Result = {
 type Instance = PromiseLike<Result> & {
   on(event: "response", fn: (client: unknown, status: number, bytes: number, ms: number) => void): void;
 };
+type Request = Record<string, unknown> & { headers?: Record<string, string> };
 type Options = {
   url: string;
   connections: number;
   duration: number;
   headers: Record<string, string>;
-  requests: Array<{ setupRequest: (req: Record<string, unknown>) => Record<string, unknown> }>;
+  requests: Array<{ setupRequest: (req: Request, context: Record<string, unknown>) => Request }>;
 };
 const autocannon = createRequire(import.meta.url)("autocannon") as (opts: Options) => Instance;
 
-const CONNECTIONS = 20;
-const SECONDS = 8;
+type Plan = { connections: number; seconds: number; perConnectionSession: boolean };
+const PLANS: Record<string, Plan> = {
+  review: { connections: 20, seconds: 8, perConnectionSession: false },
+  load: { connections: 50, seconds: 30, perConnectionSession: true },
+};
+const PLAN_NAME = process.env.BENCH_PLAN ?? "review";
+const PLAN = PLANS[PLAN_NAME] ?? PLANS.review!;
 const NEXT_BIN = join(process.cwd(), "node_modules", "next", "dist", "bin", "next");
 
 function percentile(sorted: number[], p: number): number {
@@ -41,24 +51,61 @@ function percentile(sorted: number[], p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))]!;
 }
 
-async function load(title: string, url: string, headers: Record<string, string>, paths: string[]): Promise<void> {
+// CPU time (user + system) of every process in a process group, ms, from /proc (Linux).
+function groupCpuMs(pgid: number): number {
+  let ticks = 0;
+  for (const p of readdirSync("/proc")) {
+    if (!/^\d+$/.test(p)) continue;
+    try {
+      const stat = readFileSync(`/proc/${p}/stat`, "utf8");
+      const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+      if (Number(f[2]) === pgid) ticks += Number(f[11]) + Number(f[12]);
+    } catch {
+      /* the process ended meanwhile */
+    }
+  }
+  return ticks * 10; // USER_HZ is 100 on Linux
+}
+
+function loadAverage(): string {
+  try {
+    return readFileSync("/proc/loadavg", "utf8").split(" ").slice(0, 3).join(" ");
+  } catch {
+    return "n/a";
+  }
+}
+
+async function load(title: string, url: string, cookies: string[], paths: string[], serverPgid: number): Promise<void> {
   const times: number[] = [];
   let i = 0;
+  let handed = 0;
+  const cpu0 = groupCpuMs(serverPgid);
   const instance = autocannon({
     url,
-    connections: CONNECTIONS,
-    duration: SECONDS,
-    headers,
-    requests: [{ setupRequest: (req) => ({ ...req, path: paths[i++ % paths.length]! }) }],
+    connections: PLAN.connections,
+    duration: PLAN.seconds,
+    headers: { accept: "application/json", cookie: cookies[0]! },
+    requests: [
+      {
+        setupRequest: (req, context) => {
+          // each connection keeps the cookie it was handed first: one signed-in person per client
+          if (PLAN.perConnectionSession && typeof context.cookie !== "string") context.cookie = cookies[handed++ % cookies.length];
+          const cookie = typeof context.cookie === "string" ? context.cookie : cookies[0]!;
+          return { ...req, path: paths[i++ % paths.length]!, headers: { ...req.headers, cookie } };
+        },
+      },
+    ],
   });
   instance.on("response", (_client, _status, _bytes, ms) => times.push(ms));
   const r = await instance;
+  const cpuMs = groupCpuMs(serverPgid) - cpu0;
   times.sort((a, b) => a - b);
   const bad = r.non2xx + r.errors + r.timeouts;
   console.log(
-    `  ${title}: ${r.requests.total} requests in ${SECONDS} s at ${CONNECTIONS} connections, ${r.requests.average.toFixed(0)} req/s, ` +
+    `  ${title}: ${r.requests.total} requests in ${PLAN.seconds} s at ${PLAN.connections} connections, ${r.requests.average.toFixed(0)} req/s, ` +
       `p50 ${percentile(times, 50).toFixed(1)} ms, p95 ${percentile(times, 95).toFixed(1)} ms, p99 ${percentile(times, 99).toFixed(1)} ms, ` +
-      `${(r.throughput.average / 1e6).toFixed(1)} MB/s, errors/non-2xx ${bad}`,
+      `${(r.throughput.average / 1e6).toFixed(1)} MB/s, errors/non-2xx ${bad}, ` +
+      `server CPU ${r.requests.total > 0 ? (cpuMs / r.requests.total).toFixed(2) : "n/a"} ms/request, load average ${loadAverage()}`,
   );
 }
 
@@ -104,12 +151,28 @@ async function inner(): Promise<void> {
     const s0 = performance.now();
     await seedDemoData(db);
     const site = await db("sites").where({ name: DEMO_SITE.name }).first<{ id: number }>("id");
+    const people = await db("users")
+      .whereIn(
+        "email",
+        DEMO_ACCOUNTS.map((a) => a.email),
+      )
+      .pluck<string[]>("id");
     const analyst = await db("users").where({ email: DEMO_ACCOUNTS.find((a) => a.role === "analyst")!.email }).first<{ id: string }>("id");
-    if (!site || !analyst) throw new Error("demo scenario missing");
-    const ids = (await db("evenings").where("site_id", site.id).whereBetween("local_date", ["2024-01-01", "2024-12-31"]).pluck("id")) as number[];
-    console.log(`  synthetic demo data: ${ids.length} evenings in 2024, seeded in ${((performance.now() - s0) / 1000).toFixed(1)} s`);
-    const session = await lucia.createSession(analyst.id, {});
-    const cookie = lucia.createSessionCookie(session.id);
+    if (!site || !analyst || people.length === 0) throw new Error("demo scenario missing");
+    const ids = (await db("evenings").where("site_id", site.id).whereBetween("local_date", ["2024-01-01", "2024-12-31"]).pluck<number[]>("id")).map(Number);
+    const all = (await db("evenings").where("site_id", site.id).count({ n: "*" }).first()) as { n: number | string };
+    console.log(
+      `  synthetic demo data: ${ids.length} evenings in 2024 (${Number(all.n)} at the site), seeded in ${((performance.now() - s0) / 1000).toFixed(1)} s`,
+    );
+    // The review plan signs in once; the load plan signs in one session per connection, spread
+    // over the demo's lead, analyst and viewer.
+    const cookies: string[] = [];
+    const sessions = PLAN.perConnectionSession ? PLAN.connections : 1;
+    for (let k = 0; k < sessions; k++) {
+      const who = PLAN.perConnectionSession ? people[k % people.length]! : analyst.id;
+      const c = lucia.createSessionCookie((await lucia.createSession(who, {})).id);
+      cookies.push(`${c.name}=${c.value}`);
+    }
     await closeDb();
 
     if (!existsSync(join(process.cwd(), ".next", "BUILD_ID"))) {
@@ -124,7 +187,8 @@ async function inner(): Promise<void> {
       stdio: "ignore",
       detached: true,
     });
-    const headers = { cookie: `${cookie.name}=${cookie.value}`, accept: "application/json" };
+    const pgid = server.pid!;
+    const headers = { cookie: cookies[0]!, accept: "application/json" };
     const deadline = Date.now() + 60_000;
     for (;;) {
       try {
@@ -136,12 +200,23 @@ async function inner(): Promise<void> {
         await new Promise((r) => setTimeout(r, 300));
       }
     }
-    const year = await (await fetch(`${origin}/api/sites/${site.id}/evenings?from=2024-01-01&to=2024-12-31`, { headers })).text();
+    const yearPath = `/api/sites/${site.id}/evenings?from=2024-01-01&to=2024-12-31`;
+    const seasonsPath = `/api/seasons?sites=${site.id}`;
+    const year = await (await fetch(`${origin}${yearPath}`, { headers })).text();
     console.log(`  one site-year answer: ${(year.length / 1024).toFixed(0)} kB`);
     // A few warm-up requests so the first compiled paths are not timed.
-    for (let w = 0; w < 20; w++) await fetch(`${origin}/api/evenings/${ids[w % ids.length]}`, { headers });
-    await load("GET /api/sites/:id/evenings (site-year)", origin, headers, [`/api/sites/${site.id}/evenings?from=2024-01-01&to=2024-12-31`]);
-    await load("GET /api/evenings/:id (year of evenings, cycled)", origin, headers, ids.map((id) => `/api/evenings/${id}`));
+    for (let w = 0; w < 20; w++) {
+      await (await fetch(`${origin}/api/evenings/${ids[w % ids.length]}`, { headers })).text();
+      if (PLAN_NAME === "load") await (await fetch(`${origin}${seasonsPath}`, { headers })).text();
+    }
+    console.log(`  plan ${PLAN_NAME}: ${PLAN.connections} connections, ${PLAN.seconds} s per endpoint, ${cookies.length} signed-in session(s); load average before ${loadAverage()}`);
+    await load("GET /api/sites/:id/evenings (site-year)", origin, cookies, [yearPath], pgid);
+    await load("GET /api/evenings/:id (year of evenings, cycled)", origin, cookies, ids.map((id) => `/api/evenings/${id}`), pgid);
+    if (PLAN_NAME === "load") {
+      const seasons = await (await fetch(`${origin}${seasonsPath}`, { headers })).text();
+      console.log(`  one seasons answer (every year of the site): ${(seasons.length / 1024).toFixed(0)} kB`);
+      await load("GET /api/seasons (one site, all years)", origin, cookies, [seasonsPath], pgid);
+    }
   } finally {
     if (server?.pid) {
       try {

@@ -16,7 +16,7 @@ export default async function reviewBench(): Promise<void> {
   const here = dirname(fileURLToPath(import.meta.url));
   const child = spawn(process.execPath, ["--conditions=react-server", "--import", "tsx", join(here, "review-child.ts")], {
     stdio: "inherit",
-    env: process.env,
+    env: { ...process.env, BENCH_PLAN: "review" },
   });
   const code = await new Promise<number | null>((resolve) => child.on("exit", resolve));
   if (code !== 0) console.log(`  review bench failed (exit ${code})`);
