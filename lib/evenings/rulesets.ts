@@ -2,6 +2,7 @@ import "server-only";
 import type { Knex } from "knex";
 import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
 import { db } from "@/lib/db/knex";
+import type { RuleSetRow } from "@/lib/db/tables";
 import { jsonColumn } from "@/lib/db/json";
 
 /** A stored, versioned rule set of a group. `definition.version` equals `version`. */
@@ -16,16 +17,7 @@ export interface StoredRuleSet {
   createdAt: Date;
 }
 
-type Row = {
-  id: number;
-  group_id: number;
-  version: number;
-  name: string;
-  definition: unknown;
-  author_id: string | null;
-  comment: string | null;
-  created_at: Date;
-};
+type Row = RuleSetRow;
 
 type Db = Knex | Knex.Transaction;
 

@@ -245,25 +245,9 @@ export interface StoredThreshold {
   computedAt: string;
 }
 
-type ThresholdRow = {
-  season_year: number;
-  season: Season | "year";
-  flux_series: string;
-  threshold_ms: number | null;
-  points: number;
-  temperature_classes_used: number;
-  bootstrap_resamples: number;
-  bootstrap_found: number;
-  p05_ms: number | null;
-  p50_ms: number | null;
-  p95_ms: number | null;
-  sd_ms: number | null;
-  computed_at: Date;
-};
-
 /** u* thresholds of a site per season-year and season ("year" = the annual maximum applied). */
 export async function ustarThresholdsForSite(siteId: number): Promise<StoredThreshold[]> {
-  const rows: ThresholdRow[] = await db("ustar_thresholds")
+  const rows = await db("ustar_thresholds")
     .where({ site_id: siteId })
     .orderBy("season_year")
     .orderByRaw("FIELD(season, 'winter', 'spring', 'summer', 'autumn', 'year')");
