@@ -69,10 +69,10 @@ describe("reviewing with the keyboard as the demo analyst", () => {
     // named in the day's focus text and shown as a glyph.
     const risen = "2024-06-25";
     expect(DEMO_INJECTED_RISES).toContain(risen);
-    await page.locator(`a[data-date="${risen}"][aria-label*="ISOPRENE rise after sunset"]`).waitFor();
-    expect(await page.locator(`a[data-date="${risen}"]`).getAttribute("aria-label")).toMatch(
-      /; \d+ anomal(y|ies): .*ISOPRENE rise after sunset/,
-    );
+    // A day of the month grid is named by its hidden description (the year view uses aria-label).
+    const risenDay = page.locator(`a[data-date="${risen}"]`, { hasText: "ISOPRENE rise after sunset" });
+    await risenDay.waitFor();
+    expect(await risenDay.textContent()).toMatch(/; \d+ anomal(y|ies): .*ISOPRENE rise after sunset/);
     expect(await page.locator(`a[data-date="${risen}"] [title*="ISOPRENE rise after sunset"]`).count()).toBe(1);
 
     // Tab to the calendar's single tab stop, then arrows: right one day, down one week.

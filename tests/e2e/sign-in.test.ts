@@ -83,7 +83,7 @@ describe("signing in as the demo analyst", () => {
     await page.setViewportSize({ width: 1280, height: 800 });
     await page.goto(`${app.url}/sites`);
     // The account button is named by its visible text first (the signed-in analyst), then its purpose.
-    await page.getByRole("button", { name: /^Demo Analyst \(invented\).*account and sign out$/ }).click();
+    await page.getByRole("button", { name: /^Demo Analyst \(invented\).*your account$/ }).click();
     await page.getByRole("button", { name: "Sign out" }).click();
     await page.waitForURL(/\/sign-in$/);
 

@@ -43,7 +43,7 @@ export function UserMenu({
           <span className="block truncate text-sm font-medium text-ink">{user.displayName}</span>
           <span className="block truncate text-xs text-ink-muted">{user.email}</span>
         </span>
-        <span className="sr-only">, account and sign out</span>
+        <span className="sr-only">, your account</span>
       </button>
       <div
         {...panelProps}
