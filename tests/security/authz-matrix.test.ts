@@ -165,7 +165,7 @@ async function makeWorld(): Promise<World> {
     createdBy: lead.id,
   });
   await db("jobs").where({ id: jobId }).update({ status: "done", phase: "done", finished_at: new Date() });
-  const importRow = (status: string, n: number) => ({
+  const importRow = (status: "pending" | "failed", n: number) => ({
     site_id: site.id,
     sha256: `${tag}${String(n)}`.padEnd(64, "0"),
     original_name: `hidden-${tag}-${n}.csv`,
