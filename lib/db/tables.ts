@@ -102,10 +102,6 @@ export type JobRow = {
 export type ImportStatus =
   "pending" | "queued" | "running" | "landed" | "failed" | "refused" | "deleted" | "purged";
 
-/**
- * Not yet in the registry: registering it breaks callers that insert `status` as a plain string
- * (features/imports/server/mutations.ts, tests/security). Give it to select<...>() meanwhile.
- */
 export type ImportTableRow = {
   id: number;
   site_id: number;
@@ -368,6 +364,17 @@ declare module "knex/types/tables" {
       | "created_at"
       | "result"
       | NullableKeys<JobRow>
+    >;
+    imports: Table<
+      ImportTableRow,
+      | "id"
+      | "status"
+      | "rows_written"
+      | "created_at"
+      | "mapping"
+      | "options"
+      | "report"
+      | NullableKeys<ImportTableRow>
     >;
     site_series: Table<SiteSeriesRow, never>;
     half_hours: Table<HalfHourRow, NullableKeys<HalfHourRow>>;

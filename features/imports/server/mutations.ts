@@ -58,7 +58,7 @@ export async function startImport(opts: {
         storage_key: stored.key,
         mapping: mapping === null ? null : JSON.stringify(mapping),
         options: JSON.stringify(options),
-        status: "queued",
+        status: "queued" as const,
         overlap_choice: null,
         first_start_utc: null,
         last_start_utc: null,
