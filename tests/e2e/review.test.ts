@@ -149,6 +149,8 @@ describe("reviewing with the keyboard as the demo analyst", () => {
     await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06&view=year`);
     await page.getByRole("grid", { name: "Dec" }).waitFor();
     expect(await page.locator('a[aria-label*="overridden"]').count()).toBeGreaterThan(0);
+    // The twelve-month view marks the same evening (a corner glyph; the name says which flag).
+    await page.locator('a[data-date="2024-06-25"][aria-label*="ISOPRENE rise after sunset"]').waitFor();
     await screenshot(page, "review-year");
     await page.goto(`${app.url}/sites/${siteId}/regime`);
     await page.getByRole("img", { name: /against wind speed/ }).waitFor();
