@@ -14,6 +14,7 @@ import { tmpdir } from "node:os";
 import { fileURLToPath } from "node:url";
 import { join } from "node:path";
 import { createRequire } from "node:module";
+import { get as httpGet } from "node:http";
 import { createConnection } from "mysql2/promise";
 
 // autocannon ships no types; the part used here, typed locally.
@@ -67,6 +68,18 @@ function groupCpuMs(pgid: number): number {
   return ticks * 10; // USER_HZ is 100 on Linux
 }
 
+// The bytes on the wire (fetch would decompress them) and their Content-Encoding.
+function rawBytes(url: string, headers: Record<string, string>): Promise<{ bytes: number; encoding: string }> {
+  return new Promise((resolve, reject) => {
+    httpGet(url, { headers }, (res) => {
+      let bytes = 0;
+      res.on("data", (c: Buffer) => (bytes += c.length));
+      res.on("end", () => resolve({ bytes, encoding: String(res.headers["content-encoding"] ?? "identity") }));
+      res.on("error", reject);
+    }).on("error", reject);
+  });
+}
+
 function loadAverage(): string {
   try {
     return readFileSync("/proc/loadavg", "utf8").split(" ").slice(0, 3).join(" ");
@@ -84,6 +97,7 @@ async function load(title: string, url: string, cookies: string[], paths: string
     url,
     connections: PLAN.connections,
     duration: PLAN.seconds,
+    // no Accept-Encoding: the figures are of the endpoints, not of the server's gzip
     headers: { accept: "application/json", cookie: cookies[0]! },
     requests: [
       {
@@ -203,7 +217,10 @@ async function inner(): Promise<void> {
     const yearPath = `/api/sites/${site.id}/evenings?from=2024-01-01&to=2024-12-31`;
     const seasonsPath = `/api/seasons?sites=${site.id}`;
     const year = await (await fetch(`${origin}${yearPath}`, { headers })).text();
-    console.log(`  one site-year answer: ${(year.length / 1024).toFixed(0)} kB`);
+    const yearCount = (JSON.parse(year) as { evenings: unknown[] }).evenings.length;
+    if (yearCount !== ids.length) throw new Error(`the site-year answer holds ${yearCount} evenings, expected ${ids.length}`);
+    const sent = await rawBytes(`${origin}${yearPath}`, { ...headers, "accept-encoding": "gzip, deflate" });
+    console.log(`  one site-year answer: ${(year.length / 1024).toFixed(0)} kB, ${(sent.bytes / 1024).toFixed(0)} kB as sent (${sent.encoding})`);
     // A few warm-up requests so the first compiled paths are not timed.
     for (let w = 0; w < 20; w++) {
       await (await fetch(`${origin}/api/evenings/${ids[w % ids.length]}`, { headers })).text();
