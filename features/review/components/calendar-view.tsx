@@ -493,7 +493,7 @@ function YearGrid({
 function MiniCell({ siteId, e, shown, flags, ...rest }: CellProps & { siteId: number; date: string }) {
   const box = "block aspect-square w-full rounded-[3px]";
   if (!e) return <div {...rest} className={`${box} bg-surface-sunken`} />;
-  // One corner mark, anomalies before weak turbulence; the cell's name and the side panel say which.
+  // One notch inside the corner, anomalies before weak turbulence; the cell's name and the side panel say which.
   const mark = flags?.anomalies.length ? ANOMALY_GLYPH : flags?.weak ? WEAK_GLYPH : null;
   return (
     <Link href={`/sites/${siteId}/evenings/${e.id}`} {...rest} className={`relative ${box} ${shown ? "" : "opacity-25"}`}>
@@ -501,7 +501,7 @@ function MiniCell({ siteId, e, shown, flags, ...rest }: CellProps & { siteId: nu
       {mark ? (
         <span
           aria-hidden="true"
-          className="absolute -top-1 -right-1 grid size-2.5 place-items-center rounded-full bg-surface-raised font-mono text-[7px] leading-none text-ink ring-1 ring-ink"
+          className="absolute top-0 right-0 grid size-2.5 place-items-center rounded-tr-[3px] rounded-bl-[3px] bg-surface-raised font-mono text-[7px] leading-none text-ink"
         >
           {mark}
         </span>
