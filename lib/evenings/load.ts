@@ -42,7 +42,46 @@ export async function listSiteSeries(siteId: number, conn: Db = db): Promise<Sit
   return rows;
 }
 
-const PAGE_ROWS = 20_000;
+/** The mysql2 (callback API) connection knex holds; only what the streamed read uses. */
+interface RawConnection {
+  query(options: { sql: string; rowsAsArray: boolean }, values: unknown[]): RowEmitter;
+  execute(options: { sql: string; rowsAsArray: boolean }, values: unknown[]): RowEmitter;
+}
+interface RowEmitter {
+  on(event: "result", cb: (row: unknown[]) => void): RowEmitter;
+  on(event: "error", cb: (err: Error) => void): RowEmitter;
+  on(event: "end", cb: () => void): RowEmitter;
+}
+
+/**
+ * Runs one query on knex's own connection (the transaction's, or one from the pool) and hands
+ * each row, as an array in select order, to onRow as it arrives: no row objects, nothing held.
+ * The binary protocol (prepared statement) sends DOUBLEs as their 8 bytes, so they come back
+ * exactly and without text parsing.
+ */
+async function eachRow(conn: Db, sql: string, values: unknown[], onRow: (row: unknown[]) => void): Promise<void> {
+  const client = conn.client as Knex.Client;
+  const raw = (await client.acquireConnection()) as RawConnection;
+  try {
+    await new Promise<void>((resolve, reject) => {
+      let failed: Error | null = null;
+      raw
+        .execute({ sql, rowsAsArray: true }, values)
+        .on("result", (row) => {
+          if (failed) return;
+          try {
+            onRow(row);
+          } catch (err) {
+            failed = err as Error;
+          }
+        })
+        .on("error", reject)
+        .on("end", () => (failed ? reject(failed) : resolve()));
+    });
+  } finally {
+    await client.releaseConnection(raw);
+  }
+}
 
 /** Most common step between consecutive starts, minutes (30 when there are too few rows to tell). */
 function periodMinutesOf(startMs: Float64Array, n: number): number {
@@ -64,8 +103,8 @@ function periodMinutesOf(startMs: Float64Array, n: number): number {
 /**
  * The stored half-hours of a site with period starts in [fromUtcMs, toUtcMs), as a HalfHourTable
  * in canonical units (NULL -> NaN). Tracers appear under their site_series names. Columns with no
- * value at all in the period are left out, as if the files had not had them. Reads in pages so
- * memory stays near the size of the typed arrays.
+ * value at all in the period are left out, as if the files had not had them. Streams one query
+ * into the typed arrays, so memory stays near their size.
  * @param fromUtcMs inclusive, UTC epoch ms
  * @param toUtcMs exclusive, UTC epoch ms
  */
@@ -95,41 +134,37 @@ export async function loadHalfHours(siteId: number, fromUtcMs: number, toUtcMs: 
   const seen = new Uint8Array(names.length);
   let n = 0;
 
-  // Keyset pages on the primary key (site_id, start_utc); UNIX_TIMESTAMP is UTC in our sessions.
-  let after: Date | null = null;
-  for (;;) {
-    const [rows] = (await conn.raw(
-      `SELECT UNIX_TIMESTAMP(start_utc) AS t, start_utc AS k, ${sqlCols.join(", ")} FROM half_hours
-        WHERE site_id = ? AND start_utc >= ? AND start_utc < ? ${after ? "AND start_utc > ?" : ""}
-        ORDER BY start_utc LIMIT ${PAGE_ROWS}`,
-      after ? [siteId, from, to, after] : [siteId, from, to],
-    )) as [Array<Record<string, number | Date | null>>];
-    if (rows.length === 0) break;
-    if (n + rows.length > capacity) {
-      // rows arrived since the count (outside a transaction): grow
-      capacity = Math.max(capacity * 2, n + rows.length);
-      const grow = (a: Float64Array) => {
-        const b = new Float64Array(capacity);
-        b.set(a.subarray(0, n));
-        return b;
-      };
-      startMs = grow(startMs);
-      cols = cols.map(grow);
-    }
-    for (const r of rows) {
-      startMs[n] = Number(r.t) * 1000;
-      for (let j = 0; j < sqlCols.length; j++) {
-        const v = r[sqlCols[j] as string];
+  // One streamed range scan on the primary key (site_id, start_utc), filling the arrays as rows
+  // arrive; UNIX_TIMESTAMP is UTC in our sessions.
+  const width = sqlCols.length;
+  await eachRow(
+    conn,
+    `SELECT UNIX_TIMESTAMP(start_utc), ${sqlCols.join(", ")} FROM half_hours
+      WHERE site_id = ? AND start_utc >= ? AND start_utc < ? ORDER BY start_utc`,
+    [siteId, from, to],
+    (row) => {
+      if (n === capacity) {
+        // rows arrived since the count (outside a transaction): grow
+        capacity *= 2;
+        const grow = (a: Float64Array) => {
+          const b = new Float64Array(capacity);
+          b.set(a);
+          return b;
+        };
+        startMs = grow(startMs);
+        cols = cols.map(grow);
+      }
+      startMs[n] = Number(row[0]) * 1000;
+      for (let j = 0; j < width; j++) {
+        const v = row[j + 1];
         if (typeof v === "number") {
           (cols[j] as Float64Array)[n] = v;
           seen[j] = 1;
         } else (cols[j] as Float64Array)[n] = Number.NaN;
       }
       n++;
-    }
-    after = rows[rows.length - 1]?.k as Date;
-    if (rows.length < PAGE_ROWS) break;
-  }
+    },
+  );
 
   const table: HalfHourTable = {
     startMs: n === capacity ? startMs : startMs.slice(0, n),

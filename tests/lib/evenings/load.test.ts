@@ -3,6 +3,7 @@ import { db } from "@/lib/db/knex";
 import { loadHalfHours } from "@/lib/evenings/load";
 import { localMidnightUtcMs } from "@/lib/physics/sun";
 import { generateSynthetic } from "@/lib/synthetic/generator";
+import type { InsertRow } from "@/lib/db/tables";
 import type { HalfHourTable } from "@/lib/series/types";
 import { createGroup, createSiteFor, type SiteRow } from "@/tests/support/db";
 import { paramsOf, storeTable } from "@/tests/lib/evenings/helpers";
@@ -69,5 +70,37 @@ describe("loadHalfHours", () => {
     const other = await createSiteFor(site.group_id);
     expect((await loadHalfHours(other.id, 0, Date.UTC(2100, 0, 1))).startMs.length).toBe(0);
     expect(await db("half_hours").where({ site_id: other.id }).count({ n: "*" }).first()).toEqual({ n: 0 });
+  });
+
+  it("reads inside the caller's transaction, seeing its rows not yet committed", async () => {
+    const other = await createSiteFor(site.group_id);
+    const start = Date.UTC(2025, 5, 1, 18, 0);
+    // values chosen to need all 17 significant digits (common practice: IEEE 754 round trip)
+    const ws = 0.1 + 0.2;
+    const ta = -1 / 3;
+    const trx = await db.transaction();
+    try {
+      await trx("half_hours").insert([
+        { site_id: other.id, start_utc: new Date(start), ws, ta },
+        { site_id: other.id, start_utc: new Date(start + 30 * 60_000), ws: null, ta: 1e-300 },
+      ] as Array<InsertRow<"half_hours">>);
+      const t = await loadHalfHours(other.id, start, start + DAY, trx);
+      expect(Array.from(t.startMs)).toEqual([start, start + 30 * 60_000]);
+      expect(t.columns.WS?.[0]).toBe(ws);
+      expect(t.columns.WS?.[1]).toBeNaN();
+      expect(Array.from(t.columns.TA ?? [])).toEqual([ta, 1e-300]);
+      expect(Object.keys(t.columns).sort()).toEqual(["TA", "WS"]);
+    } finally {
+      await trx.rollback();
+    }
+    expect((await loadHalfHours(other.id, start, start + DAY)).startMs.length).toBe(0);
+  });
+
+  it("gives its pooled connection back, also when many reads run at once", async () => {
+    const from = table.startMs[0] as number;
+    const to = (table.startMs.at(-1) as number) + 1;
+    // more reads than the pool has connections (10): a connection kept would stall the rest
+    const lengths = await Promise.all(Array.from({ length: 25 }, () => loadHalfHours(site.id, from, to).then((t) => t.startMs.length)));
+    expect(new Set(lengths)).toEqual(new Set([table.startMs.length]));
   });
 });
