@@ -129,14 +129,16 @@ export async function getJob(id: number): Promise<Job | null> {
 /**
  * Takes the oldest queued job of one of `kinds` for `workerId` and marks it running, or returns
  * null when there is none. Exclusive across concurrent callers (row lock, SKIP LOCKED).
+ * `onlyIds` narrows the choice to those jobs (a test running the job it made).
  */
-export async function claimNextJob(workerId: string, kinds: readonly string[]): Promise<Job | null> {
-  if (kinds.length === 0) return null;
+export async function claimNextJob(workerId: string, kinds: readonly string[], onlyIds?: readonly number[]): Promise<Job | null> {
+  if (kinds.length === 0 || onlyIds?.length === 0) return null;
+  const idFilter = onlyIds ? ` AND id IN (${onlyIds.map(() => "?").join(",")})` : "";
   return db.transaction(async (trx) => {
     const [rows] = (await trx.raw(
-      `SELECT id FROM jobs WHERE status = 'queued' AND kind IN (${kinds.map(() => "?").join(",")})
+      `SELECT id FROM jobs WHERE status = 'queued' AND kind IN (${kinds.map(() => "?").join(",")})${idFilter}
         ORDER BY id LIMIT 1 FOR UPDATE SKIP LOCKED`,
-      [...kinds],
+      [...kinds, ...(onlyIds ?? [])],
     )) as [Array<{ id: number }>];
     const id = rows[0]?.id;
     if (id === undefined) return null;

@@ -43,6 +43,8 @@ export interface WorkerOptions {
   progressMs?: number;
   /** stops the loop after the current job */
   signal?: AbortSignal;
+  /** runOnce only: claim only one of these jobs (a test running the job it made) */
+  jobIds?: readonly number[];
   log?: (message: string) => void;
 }
 
@@ -70,7 +72,7 @@ function errorMessage(err: unknown): string {
 export async function runOnce(opts: WorkerOptions): Promise<RunOutcome | null> {
   const workerId = opts.workerId ?? newWorkerId();
   const log = opts.log ?? (() => {});
-  const job = await claimNextJob(workerId, Object.keys(opts.handlers));
+  const job = await claimNextJob(workerId, Object.keys(opts.handlers), opts.jobIds);
   if (!job) return null;
   const handler = opts.handlers[job.kind];
   if (!handler) {

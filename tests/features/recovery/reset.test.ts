@@ -2,6 +2,7 @@ import { describe, expect, test } from "vitest";
 import { signIn } from "@/features/auth/server/actions";
 import { getCurrentSession } from "@/lib/auth/session";
 import { db } from "@/lib/db/knex";
+import { env } from "@/lib/env";
 import { RESET_REQUESTED_MESSAGE } from "@/features/recovery/schemas";
 import { requestResetAction, resetPasswordAction } from "@/features/recovery/server/actions";
 import { clientFor, createUser, uniqueEmail } from "@/tests/support/db";
@@ -22,7 +23,7 @@ describe("password reset", () => {
     const mails = await deliverFor(user.email);
     expect(mails).toHaveLength(1);
     expect(mails[0]?.subject).toBe("Reset your Gloaming password");
-    expect(linkIn(mails[0]!.text, "/reset-password/").origin).toBe("http://localhost:3000");
+    expect(linkIn(mails[0]!.text, "/reset-password/").origin).toBe(new URL(env.APP_URL).origin);
   });
 
   test("the link sets a new password once, signs out every other session and signs this browser in", async () => {

@@ -117,7 +117,7 @@ describe("rule sets: versions, what-if preview, activation", () => {
     const { jobId } = (await activated.json()) as { jobId: number };
     expect((await db("sites").where({ id: site.id }).first("active_rule_set_id")) as unknown).toEqual({ active_rule_set_id: ruleSet.id });
 
-    const outcome = await runOnce({ handlers: rulesJobHandlers, progressMs: 0 });
+    const outcome = await runOnce({ handlers: rulesJobHandlers, progressMs: 0, jobIds: [jobId] });
     expect(outcome).toMatchObject({ jobId, status: "done" });
     const job = (await db("jobs").where({ id: jobId }).first()) as { status: string; progress_done: number; progress_total: number; progress_unit: string };
     expect(job.status).toBe("done");

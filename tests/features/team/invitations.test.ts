@@ -2,6 +2,7 @@ import { describe, expect, test } from "vitest";
 import { hashLinkToken } from "@/lib/auth/link-token";
 import { getCurrentSession, listMemberships } from "@/lib/auth/session";
 import { db } from "@/lib/db/knex";
+import { env } from "@/lib/env";
 import type { InvitationRow } from "@/lib/db/tables";
 import { acceptInvitationAction, inviteAction, resendInvitationAction, revokeInvitationAction } from "@/features/team/server/actions";
 import { viewInvitationByHash } from "@/features/team/server/queries";
@@ -26,7 +27,7 @@ describe("invitations", () => {
   test("the invitation mail arrives with a working link; accepting creates the account, the membership and a session", async () => {
     const { group, email, mail, link, token } = await invite("analyst");
     expect(mail.subject).toBe(`Invitation to ${group.name} on Gloaming`);
-    expect(link.origin).toBe("http://localhost:3000");
+    expect(link.origin).toBe(new URL(env.APP_URL).origin);
     // Only the hash is stored.
     const row = await db("invitations").where({ email }).first<InvitationRow>();
     expect(row.token_hash).toBe(hashLinkToken(token));

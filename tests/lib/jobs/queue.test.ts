@@ -71,6 +71,16 @@ describe("job queue", () => {
     expect(rows.every((r: { status: string }) => r.status === "running")).toBe(true);
   });
 
+  it("claims only the named jobs when asked to, skipping older ones of the same kind", async () => {
+    const k = kind();
+    const older = await enqueueJob({ kind: k, groupId });
+    const mine = await enqueueJob({ kind: k, groupId });
+    expect(await claimNextJob("w", [k], [])).toBeNull();
+    expect((await claimNextJob("w", [k], [mine]))?.id).toBe(mine);
+    expect(await claimNextJob("w", [k], [mine])).toBeNull();
+    expect((await claimNextJob("w", [k]))?.id).toBe(older);
+  });
+
   it("claims only the kinds asked for and never a running or finished job", async () => {
     const k1 = kind();
     const k2 = kind();
