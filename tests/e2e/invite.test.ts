@@ -3,7 +3,7 @@ import { DEMO_GROUP_NAME, DEMO_PASSWORD } from "@/lib/demo/scenario";
 import { runOutbox } from "@/lib/mail/outbox";
 import { seedDemo, uniqueEmail } from "@/tests/support/db";
 import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
-import { caughtFor, linkIn } from "@/tests/support/mail";
+import { caughtFor, deliverFor, linkIn } from "@/tests/support/mail";
 import type { CaughtMessage } from "@/lib/mail/catcher";
 
 /*
@@ -31,10 +31,13 @@ afterAll(async () => {
   await app?.stop();
 });
 
+// The loop polls every 200 ms but backs off after a failed round; on a loaded machine the mail
+// can take its time, so wait up to 90 s and, after 10 s, deliver this address's mail directly too.
 async function waitForMail(address: string): Promise<CaughtMessage> {
-  for (let i = 0; i < 150; i++) {
+  for (let i = 0; i < 450; i++) {
     const [first] = await caughtFor(address);
     if (first) return first;
+    if (i >= 50 && i % 25 === 0) await deliverFor(address);
     await new Promise((r) => setTimeout(r, 200));
   }
   throw new Error(`no mail for ${address} reached the catcher`);
