@@ -2,7 +2,6 @@
  * Once per `vitest run`: makes sure the database server answers, creates a fresh database
  * for this run, migrates it from zero with the stock knex CLI and drops it afterwards.
  */
-import { spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { createConnection } from "mysql2/promise";
 import type { TestProject } from "vitest/node";
@@ -10,6 +9,7 @@ import { connectionOptions } from "@/lib/db/connection";
 import { env } from "@/lib/env";
 import { startDatabase } from "@/scripts/db";
 import { startMailCatcher } from "@/lib/mail/catcher";
+import { createMigratedDatabase, dropDatabase } from "@/tests/support/database";
 import path from "node:path";
 
 declare module "vitest" {
@@ -43,30 +43,8 @@ export default async function setup(project: TestProject) {
     [`${baseName.replace(/_/g, "\\_")}\\_test\\_%`],
   )) as unknown as [Array<{ name: string }>];
   for (const s of stale) await admin.query(`DROP DATABASE IF EXISTS \`${s.name}\``);
-  await admin.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-
-  const url = new URL(env.DATABASE_URL);
-  url.pathname = `/${name}`;
-  const databaseUrl = url.toString();
-
-  const migrate = spawnSync(
-    process.execPath,
-    [
-      "--conditions=react-server",
-      "--import",
-      "tsx",
-      "node_modules/knex/bin/cli.js",
-      "migrate:latest",
-      "--knexfile",
-      "knexfile.ts",
-    ],
-    { cwd: project.config.root, env: { ...process.env, DATABASE_URL: databaseUrl }, encoding: "utf8" },
-  );
-  if (migrate.status !== 0) {
-    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
-    await admin.end();
-    throw new Error(`Migrating the test database failed:\n${migrate.stdout}\n${migrate.stderr}`);
-  }
+  await admin.end();
+  const databaseUrl = await createMigratedDatabase(env.DATABASE_URL, name, { cwd: project.config.root });
 
   project.provide("databaseUrl", databaseUrl);
   project.provide("testRunId", runId);
@@ -77,7 +55,6 @@ export default async function setup(project: TestProject) {
 
   return async () => {
     await catcher.close();
-    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
-    await admin.end();
+    await dropDatabase(env.DATABASE_URL, name);
   };
 }

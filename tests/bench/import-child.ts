@@ -3,7 +3,7 @@
  * private server, migrates it, imports a 20-year SYNTHETIC file through the real pipeline, loads
  * the same file with LOAD DATA LOCAL INFILE into a copy of half_hours, prints, drops the database.
  */
-import { spawn, spawnSync } from "node:child_process";
+import { spawn } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { createReadStream, createWriteStream, mkdtempSync, rmSync, statSync } from "node:fs";
 import { once } from "node:events";
@@ -11,6 +11,7 @@ import { loadavg, tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { createConnection } from "mysql2/promise";
+import { createMigratedDatabase, dropDatabase } from "@/tests/support/database";
 
 const ROWS = 350_000;
 const DAYS = Math.ceil(ROWS / 48);
@@ -26,39 +27,18 @@ const mb = (b: number) => (b / 1e6).toFixed(1);
 async function outer(): Promise<void> {
   const { startDatabase } = await import("@/scripts/db");
   const { env } = await import("@/lib/env");
-  const { connectionOptions } = await import("@/lib/db/connection");
   await startDatabase();
   const base = new URL(env.DATABASE_URL);
   const name = `${decodeURIComponent(base.pathname.slice(1)) || "gloaming"}_test_bench_${randomBytes(3).toString("hex")}`;
-  const admin = await createConnection({ ...connectionOptions(env.DATABASE_URL), database: undefined });
-  await admin.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  const url = new URL(env.DATABASE_URL);
-  url.pathname = `/${name}`;
+  const url = await createMigratedDatabase(env.DATABASE_URL, name);
   const dir = mkdtempSync(join(tmpdir(), "gloaming-import-bench-"));
   try {
     const childEnv = {
       ...process.env,
-      DATABASE_URL: url.toString(),
+      DATABASE_URL: url,
       DATA_DIR: join(dir, "data"),
       IMPORT_BENCH_DIR: dir,
     };
-    const migrate = spawnSync(
-      process.execPath,
-      [
-        "--conditions=react-server",
-        "--import",
-        "tsx",
-        "node_modules/knex/bin/cli.js",
-        "migrate:latest",
-        "--knexfile",
-        "knexfile.ts",
-      ],
-      {
-        env: childEnv,
-        encoding: "utf8",
-      },
-    );
-    if (migrate.status !== 0) throw new Error(`migrate failed: ${migrate.stderr}`);
     const inner = spawn(
       process.execPath,
       ["--conditions=react-server", "--import", "tsx", fileURLToPath(import.meta.url)],
@@ -67,8 +47,7 @@ async function outer(): Promise<void> {
     const code = await new Promise<number | null>((resolve) => inner.on("exit", resolve));
     if (code !== 0) throw new Error(`the measuring stage failed (exit ${code})`);
   } finally {
-    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
-    await admin.end();
+    await dropDatabase(env.DATABASE_URL, name);
     rmSync(dir, { recursive: true, force: true });
   }
 }

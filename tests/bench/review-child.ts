@@ -15,7 +15,7 @@ import { fileURLToPath } from "node:url";
 import { join } from "node:path";
 import { createRequire } from "node:module";
 import { get as httpGet } from "node:http";
-import { createConnection } from "mysql2/promise";
+import { createMigratedDatabase, dropDatabase } from "@/tests/support/database";
 
 // autocannon ships no types; the part used here, typed locally.
 type Result = {
@@ -128,28 +128,18 @@ async function load(title: string, url: string, cookies: string[], paths: string
 async function outer(): Promise<void> {
   const { startDatabase } = await import("@/scripts/db");
   const { env } = await import("@/lib/env");
-  const { connectionOptions } = await import("@/lib/db/connection");
   await startDatabase();
   const base = new URL(env.DATABASE_URL);
   const name = `${decodeURIComponent(base.pathname.slice(1)) || "gloaming"}_test_bench_${randomBytes(3).toString("hex")}`;
-  const admin = await createConnection({ ...connectionOptions(env.DATABASE_URL), database: undefined });
-  await admin.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  const url = new URL(env.DATABASE_URL);
-  url.pathname = `/${name}`;
+  const url = await createMigratedDatabase(env.DATABASE_URL, name);
   const dir = mkdtempSync(join(tmpdir(), "gloaming-review-bench-"));
   try {
-    const childEnv = { ...process.env, DATABASE_URL: url.toString(), DATA_DIR: join(dir, "data"), REVIEW_BENCH_INNER: "1" };
-    const migrate = spawnSync(process.execPath, ["--conditions=react-server", "--import", "tsx", "node_modules/knex/bin/cli.js", "migrate:latest", "--knexfile", "knexfile.ts"], {
-      env: childEnv,
-      encoding: "utf8",
-    });
-    if (migrate.status !== 0) throw new Error(`migrate failed: ${migrate.stderr}`);
+    const childEnv = { ...process.env, DATABASE_URL: url, DATA_DIR: join(dir, "data"), REVIEW_BENCH_INNER: "1" };
     const inner = spawn(process.execPath, ["--conditions=react-server", "--import", "tsx", fileURLToPath(import.meta.url)], { env: childEnv, stdio: "inherit" });
     const code = await new Promise<number | null>((resolve) => inner.on("exit", resolve));
     if (code !== 0) throw new Error(`the measuring stage failed (exit ${code})`);
   } finally {
-    await admin.query(`DROP DATABASE IF EXISTS \`${name}\``);
-    await admin.end();
+    await dropDatabase(env.DATABASE_URL, name);
     rmSync(dir, { recursive: true, force: true });
   }
 }
