@@ -87,7 +87,7 @@ export type JobRow = {
   phase: string;
   progress_done: number | string;
   progress_total: number | string;
-  progress_unit: string;
+  progress_unit: "rows" | "bytes" | "evenings";
   message: string | null;
   result: unknown;
   attempts: number;

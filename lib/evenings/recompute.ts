@@ -3,7 +3,7 @@ import type { Knex } from "knex";
 import { classifyTable, emptyMetrics, type EveningResult, type Label } from "@/lib/classify/evenings";
 import type { SiteParams } from "@/lib/classify/site";
 import { db } from "@/lib/db/knex";
-import type { InsertRow } from "@/lib/db/tables";
+import type { InsertRow, SiteRow as TableSiteRow } from "@/lib/db/tables";
 import { loadHalfHours } from "@/lib/evenings/load";
 import { ensureActiveRuleSet, type StoredRuleSet } from "@/lib/evenings/rulesets";
 import { localDateOf, localMidnightUtcMs } from "@/lib/physics/sun";
@@ -43,16 +43,17 @@ export interface RecomputeResult {
   ruleSetVersion: number;
 }
 
-type SiteRow = {
-  id: number;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number | string;
-};
+type SiteRow = Pick<
+  TableSiteRow,
+  | "id"
+  | "latitude"
+  | "longitude"
+  | "elevation_m"
+  | "measurement_height_m"
+  | "canopy_height_m"
+  | "displacement_height_m"
+  | "utc_offset_hours"
+>;
 
 type StoredEvening = {
   id: number;
@@ -117,7 +118,8 @@ function same(c: Computed, s: StoredEvening, rs: StoredRuleSet): boolean {
   );
 }
 
-function siteParams(s: SiteRow): SiteParams {
+/** The classifier's view of a sites row (the row's columns, the data clock's offset as a number). */
+export function siteParamsOf(s: Omit<SiteRow, "id">): SiteParams {
   return {
     latitudeDeg: s.latitude,
     longitudeDeg: s.longitude,
@@ -155,7 +157,8 @@ export async function recomputeEvenings(
   toDate: string,
   options: RecomputeOptions = {},
 ): Promise<RecomputeResult> {
-  if (!DATE.test(fromDate) || !DATE.test(toDate)) throw new Error(`recomputeEvenings: dates must be YYYY-MM-DD (got ${fromDate}, ${toDate})`);
+  if (!DATE.test(fromDate) || !DATE.test(toDate))
+    throw new Error(`recomputeEvenings: dates must be YYYY-MM-DD (got ${fromDate}, ${toDate})`);
   if (fromDate > toDate) throw new Error(`recomputeEvenings: ${fromDate} is after ${toDate}`);
   const run = (trx: Knex.Transaction) => recomputeIn(trx, siteId, fromDate, toDate, options);
   return options.trx ? run(options.trx) : db.transaction(run);
@@ -175,7 +178,7 @@ async function recomputeIn(
   )) as [SiteRow[]];
   const site = sites[0];
   if (!site) throw new Error(`no site ${siteId}`);
-  const params = siteParams(site);
+  const params = siteParamsOf(site);
   const offset = params.utcOffsetHours;
   const ruleSet = options.ruleSet ?? (await ensureActiveRuleSet(siteId, trx));
 
@@ -193,7 +196,10 @@ async function recomputeIn(
     )) as [Array<{ a: string | null; b: string | null }>];
     const candidates = [fromDate, toDate];
     if (span[0]?.a != null && span[0].b != null) {
-      candidates.push(localDateOf(Number(span[0].a) * 1000, offset), localDateOf(Number(span[0].b) * 1000, offset));
+      candidates.push(
+        localDateOf(Number(span[0].a) * 1000, offset),
+        localDateOf(Number(span[0].b) * 1000, offset),
+      );
     }
     if (stored[0]?.a) candidates.push(stored[0].a);
     if (stored[0]?.b) candidates.push(stored[0].b);
@@ -206,7 +212,9 @@ async function recomputeIn(
   const fromMs = localMidnightUtcMs(from, offset) - DAY_MS;
   const toMs = localMidnightUtcMs(to, offset) + 2 * DAY_MS;
   const table = await loadHalfHours(siteId, fromMs, toMs, trx);
-  const results = classifyTable(table, params, ruleSet.definition).filter((r) => r.date >= from && r.date <= to);
+  const results = classifyTable(table, params, ruleSet.definition).filter(
+    (r) => r.date >= from && r.date <= to,
+  );
   const computed = new Map(results.map((r) => [r.date, computedOf(r)]));
 
   const [storedRows] = (await trx.raw(
@@ -314,7 +322,12 @@ const COLS = [
 
 // One multi-row statement per batch. On an existing evening the update keeps review state and
 // overrides: final_label moves only where label_source is 'auto'.
-async function upsertBatch(trx: Knex.Transaction, siteId: number, rs: StoredRuleSet, batch: Computed[]): Promise<void> {
+async function upsertBatch(
+  trx: Knex.Transaction,
+  siteId: number,
+  rs: StoredRuleSet,
+  batch: Computed[],
+): Promise<void> {
   const values: Knex.RawBinding[] = [];
   const finite = (v: number | null) => (v !== null && Number.isFinite(v) ? v : null);
   for (const c of batch) {
@@ -356,4 +369,3 @@ async function upsertBatch(trx: Knex.Transaction, siteId: number, rs: StoredRule
     values,
   );
 }
-

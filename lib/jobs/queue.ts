@@ -2,6 +2,7 @@ import "server-only";
 import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
 import { jsonColumn } from "@/lib/db/json";
+import type { JobRow } from "@/lib/db/tables";
 
 /*
  * A job queue in MariaDB. A worker claims the oldest queued job of the kinds it handles with
@@ -10,8 +11,8 @@ import { jsonColumn } from "@/lib/db/json";
  * vanished is re-queued by recoverStaleJobs, and fails after MAX_ATTEMPTS interruptions.
  */
 
-export type JobStatus = "queued" | "running" | "done" | "failed" | "cancelled";
-export type ProgressUnit = "rows" | "bytes" | "evenings";
+export type JobStatus = JobRow["status"];
+export type ProgressUnit = JobRow["progress_unit"];
 
 /** Interrupted runs (worker gone, heartbeat stale) after which a job fails instead of re-queueing. */
 export const MAX_ATTEMPTS = 3;
@@ -53,28 +54,6 @@ export interface Progress {
   total: number;
   unit: ProgressUnit;
 }
-
-type JobRow = {
-  id: number;
-  kind: string;
-  group_id: number;
-  site_id: number | null;
-  payload: unknown;
-  status: JobStatus;
-  phase: string;
-  progress_done: number | string;
-  progress_total: number | string;
-  progress_unit: ProgressUnit;
-  message: string | null;
-  result: unknown;
-  attempts: number;
-  locked_by: string | null;
-  heartbeat_at: Date | null;
-  created_by: string | null;
-  created_at: Date;
-  started_at: Date | null;
-  finished_at: Date | null;
-};
 
 function toJob(r: JobRow): Job {
   return {
@@ -122,7 +101,7 @@ export async function enqueueJob(job: NewJob, trx?: Knex | Knex.Transaction): Pr
 
 /** One job by id, or null. */
 export async function getJob(id: number): Promise<Job | null> {
-  const row = (await db("jobs").where({ id }).first()) as JobRow | undefined;
+  const row = await db("jobs").where({ id }).first();
   return row ? toJob(row) : null;
 }
 
@@ -131,7 +110,11 @@ export async function getJob(id: number): Promise<Job | null> {
  * null when there is none. Exclusive across concurrent callers (row lock, SKIP LOCKED).
  * `onlyIds` narrows the choice to those jobs (a test running the job it made).
  */
-export async function claimNextJob(workerId: string, kinds: readonly string[], onlyIds?: readonly number[]): Promise<Job | null> {
+export async function claimNextJob(
+  workerId: string,
+  kinds: readonly string[],
+  onlyIds?: readonly number[],
+): Promise<Job | null> {
   if (kinds.length === 0 || onlyIds?.length === 0) return null;
   const idFilter = onlyIds ? ` AND id IN (${onlyIds.map(() => "?").join(",")})` : "";
   return db.transaction(async (trx) => {
@@ -262,15 +245,17 @@ export async function recoverStaleJobs(
           });
         failed.push(Number(r.id));
       } else {
-        await trx("jobs").where({ id: r.id }).update({
-          status: "queued",
-          phase: "queued",
-          attempts,
-          locked_by: null,
-          heartbeat_at: null,
-          progress_done: 0,
-          message: `Re-queued after an interrupted attempt (${attempts} of ${MAX_ATTEMPTS}).`,
-        });
+        await trx("jobs")
+          .where({ id: r.id })
+          .update({
+            status: "queued",
+            phase: "queued",
+            attempts,
+            locked_by: null,
+            heartbeat_at: null,
+            progress_done: 0,
+            message: `Re-queued after an interrupted attempt (${attempts} of ${MAX_ATTEMPTS}).`,
+          });
         requeued.push(Number(r.id));
       }
     }

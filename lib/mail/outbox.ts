@@ -5,6 +5,7 @@ import type { Knex } from "knex";
 import type { Transporter } from "nodemailer";
 import type SMTPTransport from "nodemailer/lib/smtp-transport";
 import { db } from "@/lib/db/knex";
+import type { MailOutboxRow } from "@/lib/db/tables";
 import { describeDatabaseError, isDatabaseUnavailable } from "@/lib/db/errors";
 import { env } from "@/lib/env";
 import { mailTransport } from "@/lib/mail/transport";
@@ -29,26 +30,6 @@ export type OutgoingMail = {
   html?: string;
   /** Makes queueing idempotent: a second row with the same key is silently dropped. */
   dedupeKey?: string;
-};
-
-export type OutboxRow = {
-  id: number;
-  dedupe_key: string | null;
-  kind: string;
-  to_address: string;
-  subject: string;
-  text_body: string;
-  html_body: string | null;
-  status: "pending" | "sending" | "sent" | "failed";
-  attempts: number;
-  next_attempt_at: Date;
-  lease_owner: string | null;
-  lease_until: Date | null;
-  last_error: string | null;
-  message_id: string | null;
-  delivered_id: string | null;
-  sent_at: Date | null;
-  created_at: Date;
 };
 
 /** Attempts before a message is given up as "failed". */
@@ -101,7 +82,7 @@ async function claim(
   limit: number,
   filter: OutboxFilter,
   leaseMs: number,
-): Promise<OutboxRow[]> {
+): Promise<MailOutboxRow[]> {
   return db.transaction(async (trx) => {
     const q = trx("mail_outbox").where((w) => {
       w.where((d) => {
@@ -122,7 +103,7 @@ async function claim(
         lease_until: new Date(now.getTime() + leaseMs),
         attempts: trx.raw("attempts + 1"),
       });
-    const rows = (await trx("mail_outbox").whereIn("id", ids).orderBy("id")) as OutboxRow[];
+    const rows = await trx("mail_outbox").whereIn("id", ids).orderBy("id");
     // A message keeps its Message-ID across attempts.
     for (const row of rows) {
       if (!row.message_id) {

@@ -12,8 +12,9 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
+import type { MailOutboxRow } from "@/lib/db/tables";
 import { startMailCatcher, type CaughtMessage, type RunningCatcher } from "@/lib/mail/catcher";
-import { queueMail, type OutboxRow } from "@/lib/mail/outbox";
+import { queueMail } from "@/lib/mail/outbox";
 import { uniqueEmail } from "@/tests/support/db";
 
 type KillPoint = "connect" | "data" | "accepted";
@@ -121,7 +122,8 @@ function deliverInChild(ids: number[], point: KillPoint | null): Promise<RunResu
   return new Promise((resolve) => c.on("exit", (code, signal) => resolve({ code, signal, out })));
 }
 
-const rowsOf = (ids: number[]): Promise<OutboxRow[]> => db("mail_outbox").whereIn("id", ids).orderBy("id");
+const rowsOf = (ids: number[]): Promise<MailOutboxRow[]> =>
+  db("mail_outbox").whereIn("id", ids).orderBy("id");
 
 /** Waits until the leases of `ids` have run out, so the next round may claim them again. */
 async function leaseOver(ids: number[]): Promise<void> {

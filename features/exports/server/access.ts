@@ -1,23 +1,12 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
+import type { SiteRow } from "@/lib/db/tables";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
 import { authenticateRequest } from "@/lib/auth/tokens";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 
-export type ExportSite = {
-  id: number;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number;
-  notes: string | null;
-  active_rule_set_id: number | null;
-};
+/** The site as the export reads it (the sites row without its timestamps). */
+export type ExportSite = Omit<SiteRow, "created_at" | "updated_at">;
 
 /** Who asks: a script's `Authorization: Bearer` API token when it sends one, else the session cookie. */
 export async function callerOf(request?: Request): Promise<SessionUser> {
@@ -30,10 +19,16 @@ export async function callerOf(request?: Request): Promise<SessionUser> {
 }
 
 /** A site `user` may see with at least `minimum`; other groups' sites are simply not found. */
-export async function exportSite(user: SessionUser, siteId: number, minimum: Role = "viewer"): Promise<{ site: ExportSite; role: Role }> {
+export async function exportSite(
+  user: SessionUser,
+  siteId: number,
+  minimum: Role = "viewer",
+): Promise<{ site: ExportSite; role: Role }> {
   const site = await db("sites").where({ id: siteId }).first<ExportSite | undefined>();
   if (!site) throw new AuthError("not_found");
-  const m: { role: string } | undefined = await db("memberships").where({ user_id: user.id, group_id: site.group_id }).first("role");
+  const m: { role: string } | undefined = await db("memberships")
+    .where({ user_id: user.id, group_id: site.group_id })
+    .first("role");
   if (!m || !isRole(m.role)) throw new AuthError("not_found");
   if (!roleAtLeast(m.role, minimum)) throw new AuthError("forbidden");
   return { site: { ...site, utc_offset_hours: Number(site.utc_offset_hours) }, role: m.role };

@@ -3,20 +3,22 @@ import { AuthError, getCurrentSession } from "@/lib/auth/session";
 import { authenticateRequest } from "@/lib/auth/tokens";
 import { roleAtLeast, type Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
+import type { SiteRow } from "@/lib/db/tables";
 
 /** The sites columns the import needs. */
-export type ImportSiteRow = {
-  id: number;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number;
-};
+export type ImportSiteRow = Pick<
+  SiteRow,
+  | "id"
+  | "group_id"
+  | "name"
+  | "latitude"
+  | "longitude"
+  | "elevation_m"
+  | "measurement_height_m"
+  | "canopy_height_m"
+  | "displacement_height_m"
+  | "utc_offset_hours"
+>;
 
 export type Caller = { userId: string };
 
@@ -39,7 +41,9 @@ export async function callerOf(request?: Request): Promise<Caller> {
 
 /** Role of a user in a group, or null when not a member. */
 export async function roleIn(userId: string, groupId: number): Promise<Role | null> {
-  const row = await db<{ user_id: string; group_id: number; role: Role }>("memberships").where({ user_id: userId, group_id: groupId }).first("role");
+  const row = await db<{ user_id: string; group_id: number; role: Role }>("memberships")
+    .where({ user_id: userId, group_id: groupId })
+    .first("role");
   return row?.role ?? null;
 }
 

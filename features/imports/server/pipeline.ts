@@ -39,18 +39,6 @@ export type ImportRow = {
   created_by: string | null;
 };
 
-type SiteRow = {
-  id: number;
-  group_id: number;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number;
-};
-
 /** Outcome of one run of the import job. */
 export type ImportOutcome =
   | { outcome: "landed"; importId: number; rows: number; evenings: number }
@@ -154,7 +142,7 @@ export async function runImport(importId: number, progress: Progress): Promise<I
   const imp = (await db("imports").where({ id: importId }).first()) as ImportRow | undefined;
   if (!imp) throw new ImportFailure(`Import ${importId} does not exist.`);
   if (imp.status === "landed") return { outcome: "already", importId };
-  const site = (await db("sites").where({ id: imp.site_id }).first()) as SiteRow | undefined;
+  const site = await db("sites").where({ id: imp.site_id }).first();
   if (!site) throw new ImportFailure("The site of this import no longer exists.");
   const settings = jsonColumn<ImportSettings>(imp.options) ?? {};
   const columns = jsonColumn<ColumnMapping>(imp.mapping) ?? undefined;

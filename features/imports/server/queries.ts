@@ -1,6 +1,7 @@
 import "server-only";
 import { jsonColumn } from "@/lib/db/json";
 import { db } from "@/lib/db/knex";
+import type { JobRow } from "@/lib/db/tables";
 import type { ColumnMapping } from "@/lib/series/recognize";
 import {
   templateSchema,
@@ -9,7 +10,6 @@ import {
   type ImportStatus,
   type ImportSummary,
   type ImportTemplate,
-  type JobStatus,
   type JobView,
 } from "@/features/imports/schemas";
 import type { ImportRow } from "@/features/imports/server/pipeline";
@@ -102,27 +102,9 @@ export function splitSettings(settings: ImportSettings): {
   return { mapping: (columns as ColumnMapping | undefined) ?? null, options };
 }
 
-type JobRow = {
-  id: number;
-  kind: string;
-  group_id: number;
-  site_id: number | null;
-  payload: unknown;
-  status: JobStatus;
-  phase: string;
-  progress_done: number;
-  progress_total: number;
-  progress_unit: string;
-  message: string | null;
-  result: unknown;
-  created_at: Date;
-  started_at: Date | null;
-  finished_at: Date | null;
-};
-
 /** A job row and its group (for the caller's role check), or null. */
 export async function getJobRow(jobId: number): Promise<JobRow | null> {
-  return ((await db("jobs").where({ id: jobId }).first()) as JobRow | undefined) ?? null;
+  return (await db("jobs").where({ id: jobId }).first()) ?? null;
 }
 
 /** A job as the API shows it, with its import when it is an import job. */

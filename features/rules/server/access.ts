@@ -1,5 +1,7 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
+import type { SiteRow } from "@/lib/db/tables";
+import { siteParamsOf } from "@/lib/evenings/recompute";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
 import { authenticateRequest } from "@/lib/auth/tokens";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
@@ -19,27 +21,20 @@ export async function callerOf(request?: Request): Promise<SessionUser> {
 
 /** The caller's role in a group: not a member -> not_found, below `minimum` -> forbidden. */
 export async function groupRole(user: SessionUser, groupId: number, minimum: Role): Promise<Role> {
-  const m: { role: string } | undefined = await db("memberships").where({ user_id: user.id, group_id: groupId }).first("role");
+  const m: { role: string } | undefined = await db("memberships")
+    .where({ user_id: user.id, group_id: groupId })
+    .first("role");
   if (!m || !isRole(m.role)) throw new AuthError("not_found");
   if (!roleAtLeast(m.role, minimum)) throw new AuthError("forbidden");
   return m.role;
 }
 
-type SiteRow = {
-  id: number;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  elevation_m: number;
-  measurement_height_m: number;
-  canopy_height_m: number;
-  displacement_height_m: number | null;
-  utc_offset_hours: number | string;
-};
-
 /** A site the caller may use at `minimum`, with the parameters the classifier needs. */
-export async function rulesSite(user: SessionUser, siteId: number, minimum: Role): Promise<{ site: RulesSite; role: Role }> {
+export async function rulesSite(
+  user: SessionUser,
+  siteId: number,
+  minimum: Role,
+): Promise<{ site: RulesSite; role: Role }> {
   const r = await db("sites").where({ id: siteId }).first<SiteRow | undefined>();
   if (!r) throw new AuthError("not_found");
   const role = await groupRole(user, r.group_id, minimum);
@@ -49,13 +44,7 @@ export async function rulesSite(user: SessionUser, siteId: number, minimum: Role
       id: r.id,
       groupId: r.group_id,
       name: r.name,
-      latitudeDeg: r.latitude,
-      longitudeDeg: r.longitude,
-      elevationM: r.elevation_m,
-      measurementHeightM: r.measurement_height_m,
-      canopyHeightM: r.canopy_height_m,
-      displacementHeightM: r.displacement_height_m,
-      utcOffsetHours: Number(r.utc_offset_hours),
+      ...siteParamsOf(r),
     },
   };
 }

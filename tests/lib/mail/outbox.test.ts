@@ -4,8 +4,9 @@ import path from "node:path";
 import nodemailer from "nodemailer";
 import { describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
+import type { MailOutboxRow } from "@/lib/db/tables";
 import { env } from "@/lib/env";
-import { deliverDue, queueMail, retryDelayMs, type OutboxRow } from "@/lib/mail/outbox";
+import { deliverDue, queueMail, retryDelayMs } from "@/lib/mail/outbox";
 import { startMailCatcher } from "@/lib/mail/catcher";
 import { listCaughtMessages } from "@/lib/mail/caught";
 import { smtpOptions } from "@/lib/mail/transport";
@@ -13,13 +14,18 @@ import { uniqueEmail } from "@/tests/support/db";
 import { caughtFor, deliverFor } from "@/tests/support/mail";
 import { freePort } from "@/tests/support/browser";
 
-const row = async (id: number) => (await db("mail_outbox").where({ id }).first()) as OutboxRow;
+const row = async (id: number) => (await db("mail_outbox").where({ id }).first()) as MailOutboxRow;
 const HOUR = 60 * 60_000;
 
 describe("mail outbox", () => {
   test("a queued message reaches the local catcher once, with subject, body and Message-ID", async () => {
     const to = uniqueEmail("outbox");
-    const id = await queueMail({ kind: "test", to, subject: "Hello from the outbox", text: "Line one\nhttp://localhost:3000/x" });
+    const id = await queueMail({
+      kind: "test",
+      to,
+      subject: "Hello from the outbox",
+      text: "Line one\nhttp://localhost:3000/x",
+    });
     expect(id).toBeGreaterThan(0);
     const caught = await deliverFor(to);
     expect(caught).toHaveLength(1);
@@ -47,7 +53,11 @@ describe("mail outbox", () => {
     const down = smtp;
 
     const t0 = new Date();
-    expect(await deliverDue({ transport: down, filter: { ids: [id] }, now: t0 })).toEqual({ sent: 0, retrying: 1, failed: 0 });
+    expect(await deliverDue({ transport: down, filter: { ids: [id] }, now: t0 })).toEqual({
+      sent: 0,
+      retrying: 1,
+      failed: 0,
+    });
     let r = await row(id);
     expect(r).toMatchObject({ status: "pending", attempts: 1 });
     expect(r.last_error).toBeTruthy();
@@ -70,7 +80,14 @@ describe("mail outbox", () => {
       expect((await deliverDue({ transport: smtp, filter: { ids: [id] }, now: t2 })).sent).toBe(1);
       // A restarted worker finds nothing left to do.
       expect(
-        (await deliverDue({ transport: smtp, filter: { ids: [id] }, owner: "after-restart", now: new Date(t2.getTime() + 48 * HOUR) })).sent,
+        (
+          await deliverDue({
+            transport: smtp,
+            filter: { ids: [id] },
+            owner: "after-restart",
+            now: new Date(t2.getTime() + 48 * HOUR),
+          })
+        ).sent,
       ).toBe(0);
       const caught = (await listCaughtMessages(dir)).filter((m) => m.to.includes(to));
       expect(caught).toHaveLength(1);
@@ -88,7 +105,12 @@ describe("mail outbox", () => {
     const now = new Date();
     await db("mail_outbox")
       .where({ id })
-      .update({ status: "sending", lease_owner: "dead-worker", lease_until: new Date(now.getTime() + 60_000), attempts: 1 });
+      .update({
+        status: "sending",
+        lease_owner: "dead-worker",
+        lease_until: new Date(now.getTime() + 60_000),
+        attempts: 1,
+      });
     expect((await deliverDue({ filter: { ids: [id] }, now })).sent).toBe(0);
     expect((await deliverDue({ filter: { ids: [id] }, now: new Date(now.getTime() + 61_000) })).sent).toBe(1);
     expect(await caughtFor(to)).toHaveLength(1);
