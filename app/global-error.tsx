@@ -1,11 +1,13 @@
 "use client";
 
+import { errorDigest } from "@/lib/ui/error-notice";
+
 /*
  * Last resort when even the root layout fails. It replaces the whole document and gets none of
  * the app's styles, so it carries its own few rules and follows the system colour scheme.
  */
 export default function GlobalError({ error, retry }: { error: unknown; retry: () => void }) {
-  const digest = error instanceof Error && "digest" in error ? String(error.digest) : null;
+  const digest = errorDigest(error);
   return (
     <html lang="en">
       <body style={{ margin: 0, fontFamily: "system-ui, sans-serif", colorScheme: "light dark" }}>
