@@ -4,6 +4,8 @@ import { db } from "@/lib/db/knex";
 import type { AnomalyKind } from "@/lib/anomalies/detect";
 import type { Label } from "@/lib/classify/evenings";
 import { monthsOfSeason, type Season } from "@/lib/ustar/seasons";
+import type { ThresholdUncertainty } from "@/lib/ustar/threshold";
+import type { AnomalyRow } from "@/lib/db/tables";
 
 /*
  * Reads of stored anomalies, u* thresholds and weak-turbulence flags. Every row carries the
@@ -40,21 +42,11 @@ export interface AnomalyFilters {
   season?: Season | null;
 }
 
-type Row = {
-  id: number;
-  series: string;
-  kind: AnomalyKind;
-  start_utc: Date;
-  end_utc: Date;
-  peak_score: number;
-  peak_value: number | null;
-  baseline_value: number | null;
-  periods: number;
-  evening_id: number;
+// An anomaly row with its evening's date and final label joined in.
+type Row = Omit<AnomalyRow, "site_id" | "rule_set_version" | "detected_at"> & {
   evening_date: string;
   final_label: Label;
   label_source: "auto" | "override";
-  label_at_detection: Label | null;
 };
 
 const toAnomaly = (r: Row): StoredAnomaly => ({
@@ -234,14 +226,7 @@ export interface StoredThreshold {
   thresholdMs: number | null;
   points: number;
   temperatureClassesUsed: number;
-  bootstrap: {
-    resamples: number;
-    found: number;
-    p05: number | null;
-    p50: number | null;
-    p95: number | null;
-    sd: number | null;
-  };
+  bootstrap: ThresholdUncertainty;
   computedAt: string;
 }
 

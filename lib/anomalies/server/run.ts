@@ -9,7 +9,7 @@ import { getActiveRuleSet } from "@/lib/evenings/rulesets";
 import { weakTurbulenceByEvening } from "@/lib/ustar/flags";
 import { nightMask } from "@/lib/ustar/night";
 import { seasonOfDate } from "@/lib/ustar/seasons";
-import { ustarThresholds } from "@/lib/ustar/threshold";
+import { ustarThresholds, type ThresholdUncertainty } from "@/lib/ustar/threshold";
 
 /*
  * The anomaly job's work for one site and a range of evenings: screen every mapped
@@ -76,7 +76,12 @@ export async function runAnomalyDetection(
 
   const q = db("evenings")
     .where({ site_id: siteId })
-    .select<EveningRow[]>("id", db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS local_date"), "sunset_utc", "final_label")
+    .select<EveningRow[]>(
+      "id",
+      db.raw("DATE_FORMAT(local_date, '%Y-%m-%d') AS local_date"),
+      "sunset_utc",
+      "final_label",
+    )
     .orderBy("local_date");
   if (range.from) q.andWhere("local_date", ">=", range.from);
   if (range.to) q.andWhere("local_date", "<=", range.to);
@@ -153,14 +158,7 @@ export async function runAnomalyDetection(
       seasonYear: number,
       season: UstarThresholdRow["season"],
       thresholdMs: number | null,
-      unc: {
-        resamples: number;
-        found: number;
-        p05: number | null;
-        p50: number | null;
-        p95: number | null;
-        sd: number | null;
-      },
+      unc: ThresholdUncertainty,
       points: number,
       used: number,
     ) => ({
