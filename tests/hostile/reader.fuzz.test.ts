@@ -106,17 +106,56 @@ describe("table reader under hostile input", () => {
   });
 
   test("CSV-like text: a table or a TableError, the same whatever the chunking and parse path", { timeout: 120_000 }, async () => {
+    // Random rows seldom form a readable file (3 tables in 300 runs), so half the runs damage a good
+    // one. The reader holds back the first 16 kB whatever the chunking, so only longer files
+    // (about 40 bytes a row) reach the chunk-boundary and fast-path code at all.
+    const damagedGood = fc
+      .record({
+        n: fc.oneof(fc.integer({ min: 1, max: 40 }), fc.integer({ min: 450, max: 900 })),
+        hits: fc.array(fc.tuple(fc.nat(), fc.integer({ min: 0, max: 4 }), cell), { maxLength: 6 }),
+        delim: fc.constantFrom(",", ";", "\t"),
+        eol: fc.constantFrom("\n", "\r\n", "\r"),
+        bom: fc.boolean(),
+      })
+      .map(({ n, hits, delim, eol: eolAsked, bom }) => {
+        // Long CR-only files are read differently by chunking (the known failure below).
+        const eol = n > 40 && eolAsked === "\r" ? "\n" : eolAsked;
+        const rows = goodFile(n).trimEnd().split("\n").map((l) => l.split(","));
+        for (const [r, c, v] of hits) {
+          const row = rows[1 + (r % n)];
+          if (row) row[c] = v;
+        }
+        return (bom ? "\uFEFF" : "") + rows.map((r) => r.join(delim)).join(eol) + eol;
+      });
+    // Both kinds must occur, or the comparison of chunkings covers only one path of the reader.
+    const seen = { table: 0, error: 0 };
     await fc.assert(
-      fc.asyncProperty(csvLike, fc.array(fc.integer({ min: 1, max: 97 }), { maxLength: 4 }), async (text, sizes) => {
+      fc.asyncProperty(fc.oneof(csvLike, damagedGood), fc.array(fc.integer({ min: 1, max: 97 }), { maxLength: 4 }), async (text, sizes) => {
         const bytes = enc.encode(text);
         const whole = await outcome(bytes);
         const pieces = await outcome(bytes, sizes);
         expect(pieces).toEqual(whole);
         const slow = await outcome(bytes, [], { ...OPTS, fastPath: false });
         expect(slow).toEqual(whole);
+        seen[whole.kind] += 1;
       }),
       RUNS,
     );
+    console.info(`[hostile] CSV-like runs: ${seen.table} tables, ${seen.error} errors`);
+    expect(seen.table, "runs that gave a table").toBeGreaterThanOrEqual(10);
+    expect(seen.error, "runs that gave a TableError").toBeGreaterThanOrEqual(10);
+  });
+
+  // Known reader defect, found by the fuzz above: past the first 16 kB a CR-only file with a bad
+  // timestamp is refused when read whole but read as a table in small chunks. Remove `.fails`
+  // (and the CR exclusion above) when lib/series/reader.ts reads both alike.
+  test.fails("a long CR-only file with an empty timestamp is read the same whole and in chunks", async () => {
+    const lines = goodFile(500).trimEnd().split("\n");
+    lines[419] = `,${lines[419]?.split(",").slice(1).join(",")}`;
+    const bytes = enc.encode(lines.join("\r") + "\r");
+    const whole = await outcome(bytes);
+    expect(await outcome(bytes, [50])).toEqual(whole);
+    expect(await outcome(bytes, [], { ...OPTS, fastPath: false })).toEqual(whole);
   });
 
   test("a good file is read with every line end, and CR-only files are not one long line", async () => {
