@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { runWorker } from "@/lib/jobs/worker";
 import { importJobHandlers } from "@/features/imports/server/jobs";
 import { createSessionFor } from "@/tests/support/db";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { addSessionCookies, launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
 import { analystWithSite, halfHourCount, syntheticCsv } from "@/tests/features/imports/helpers";
 
 /*
@@ -38,8 +38,7 @@ afterAll(async () => {
 describe("importing through the page", () => {
   test("preview, upload with progress to 100 %, then the report", { timeout: 240_000 }, async () => {
     const { site, userId } = await analystWithSite();
-    const { cookieName, cookieValue } = await createSessionFor(userId);
-    await browser.context.addCookies([{ name: cookieName, value: cookieValue, url: app.url }]);
+    await addSessionCookies(browser.context, app.url, await createSessionFor(userId));
     const file = path.join(dir, "tower-synthetic-2022.csv");
     const lines = syntheticCsv(365, { startDate: "2022-01-01", seed: 21 }).split("\n");
     // Two bad cells, to see them in the report with their line numbers.

@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { DEMO_GROUP_NAME, DEMO_PASSWORD } from "@/lib/demo/scenario";
+import { DEMO_GROUP_NAME } from "@/lib/demo/scenario";
 import { runOutbox } from "@/lib/mail/outbox";
 import { seedDemo, uniqueEmail } from "@/tests/support/db";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { launchBrowser, screenshot, signInAs, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
 import { caughtFor, deliverFor, linkIn } from "@/tests/support/mail";
 import type { CaughtMessage } from "@/lib/mail/catcher";
 
@@ -48,11 +48,7 @@ describe("inviting a new member", () => {
     const { page, context } = browser;
     const invitee = uniqueEmail("new-member");
 
-    await page.goto(`${app.url}/sign-in`);
-    await page.getByLabel("E-mail address").fill("lead@demo.gloaming.test");
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in", exact: true }).click();
-    await page.waitForURL(/\/sites$/);
+    await signInAs(page, app.url, "lead@demo.gloaming.test");
 
     await page.getByRole("link", { name: /Team/ }).first().click();
     await page.getByRole("heading", { level: 1, name: "Team" }).waitFor();

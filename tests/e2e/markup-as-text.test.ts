@@ -5,7 +5,7 @@ import { POST as overridePost } from "@/app/api/evenings/[eveningId]/overrides/r
 import { GET as exportGet } from "@/app/api/sites/[siteId]/export/route";
 import { insertEvenings } from "@/tests/features/seasons/evening-rows";
 import { unzipBuffer } from "@/tests/features/exports/unzip";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { launchBrowser, screenshot, signInAs, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
 import { addMember, clientFor, createSiteFor, createUser, createUserWithGroup, TEST_PASSWORD, type TestUser } from "@/tests/support/db";
 
 /*
@@ -68,11 +68,7 @@ async function expectInert(page: Page): Promise<void> {
 describe("names and notes with markup are shown as text", () => {
   test("sites list, evening page with its history, and team page", { timeout: 180_000 }, async () => {
     const { page } = browser;
-    await page.goto(`${app.url}/sign-in`);
-    await page.getByLabel("E-mail address").fill(lead.email);
-    await page.getByLabel("Password").fill(TEST_PASSWORD);
-    await page.getByRole("button", { name: "Sign in", exact: true }).click();
-    await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+    await signInAs(page, app.url, lead.email, { password: TEST_PASSWORD, landing: (u) => !u.pathname.startsWith("/sign-in") });
 
     await page.goto(`${app.url}/sites`);
     await page.getByText(`Tower ${IMG}`).first().waitFor();

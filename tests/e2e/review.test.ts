@@ -1,10 +1,10 @@
 import { createRequire } from "node:module";
 import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
 import { DEMO_GROUP_NAME, DEMO_PASSWORD, DEMO_SITE } from "@/lib/demo/scenario";
 import { DEMO_INJECTED_RISES, seedDemoData } from "@/db/seeds/02_demo_data";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { appInBrowserForFile, screenshot } from "@/tests/support/browser";
 
 /*
  * The demo analyst reviews evenings without the mouse: calendar, evening page, an override
@@ -13,23 +13,16 @@ import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningA
 
 const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
 
-let app: RunningApp;
-let browser: BrowserSession;
 let siteId: number;
 
-beforeAll(async () => {
-  await seedDemoData(db);
-  const group = await db("research_groups").where({ name: DEMO_GROUP_NAME }).first<{ id: number }>("id");
-  const site = await db("sites").where({ group_id: group?.id ?? -1, name: DEMO_SITE.name }).first<{ id: number }>("id");
-  if (!site) throw new Error("demo site missing");
-  siteId = site.id;
-  app = await startApp();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await app?.stop();
+const rig = appInBrowserForFile({
+  prepare: async () => {
+    await seedDemoData(db);
+    const group = await db("research_groups").where({ name: DEMO_GROUP_NAME }).first<{ id: number }>("id");
+    const site = await db("sites").where({ group_id: group?.id ?? -1, name: DEMO_SITE.name }).first<{ id: number }>("id");
+    if (!site) throw new Error("demo site missing");
+    siteId = site.id;
+  },
 });
 
 type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
@@ -53,8 +46,8 @@ async function activeDate(page: Page): Promise<string | null> {
 
 describe("reviewing with the keyboard as the demo analyst", () => {
   test("sign in, open the calendar, move to an evening, override it with a note, see it in the history", { timeout: 120_000 }, async () => {
-    const { page } = browser;
-    await page.goto(`${app.url}/sign-in`);
+    const { page } = rig.browser;
+    await page.goto(`${rig.app.url}/sign-in`);
     await page.getByLabel("E-mail address").focus();
     await page.keyboard.type("analyst@demo.gloaming.test");
     await page.keyboard.press("Tab");
@@ -62,7 +55,7 @@ describe("reviewing with the keyboard as the demo analyst", () => {
     await page.keyboard.press("Enter");
     await page.waitForURL(/\/sites$/);
 
-    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
+    await page.goto(`${rig.app.url}/sites/${siteId}/calendar?month=2024-06`);
     await page.getByRole("grid", { name: "June 2024" }).waitFor();
     await page.locator('a[data-date="2024-06-03"]').waitFor();
     // The demo's known post-sunset isoprene rise (synthetic truth) carries the anomaly marker,
@@ -133,26 +126,26 @@ describe("reviewing with the keyboard as the demo analyst", () => {
   });
 
   test("the review queue and the twelve-month view render with the override in place", { timeout: 60_000 }, async () => {
-    const { page } = browser;
+    const { page } = rig.browser;
     // The evening of a known rise: its isoprene chart shows the anomaly span.
-    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
+    await page.goto(`${rig.app.url}/sites/${siteId}/calendar?month=2024-06`);
     await page.locator('a[data-date="2024-06-25"]').click();
     await page.waitForURL(/\/evenings\/\d+$/);
     await page.getByRole("img", { name: /^ISOPRENE .*rise after sunset/ }).waitFor();
     await screenshot(page, "review-evening-anomaly");
 
-    await page.goto(`${app.url}/sites/${siteId}/review?month=2024-06`);
+    await page.goto(`${rig.app.url}/sites/${siteId}/review?month=2024-06`);
     await page.getByRole("list", { name: "Evenings by need of review" }).waitFor();
     await page.getByText(/anomal(y|ies): ISOPRENE rise after sunset/).first().waitFor();
     await page.keyboard.press("j");
     await screenshot(page, "review-queue");
-    await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06&view=year`);
+    await page.goto(`${rig.app.url}/sites/${siteId}/calendar?month=2024-06&view=year`);
     await page.getByRole("grid", { name: "Dec" }).waitFor();
     expect(await page.locator('a[aria-label*="overridden"]').count()).toBeGreaterThan(0);
     // The twelve-month view marks the same evening (a corner glyph; the name says which flag).
     await page.locator('a[data-date="2024-06-25"][aria-label*="ISOPRENE rise after sunset"]').waitFor();
     await screenshot(page, "review-year");
-    await page.goto(`${app.url}/sites/${siteId}/regime`);
+    await page.goto(`${rig.app.url}/sites/${siteId}/regime`);
     await page.getByRole("img", { name: /against wind speed/ }).waitFor();
     await screenshot(page, "review-regime");
   });

@@ -1,8 +1,7 @@
 import { createRequire } from "node:module";
 import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { DEMO_PASSWORD } from "@/lib/demo/scenario";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { describe, expect, test } from "vitest";
+import { screenshot, signInAs, appInBrowserForFile } from "@/tests/support/browser";
 import { seedDemo } from "@/tests/support/db";
 
 /*
@@ -12,19 +11,7 @@ import { seedDemo } from "@/tests/support/db";
 
 const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
 
-let app: RunningApp;
-let browser: BrowserSession;
-
-beforeAll(async () => {
-  await seedDemo();
-  app = await startApp();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await app?.stop();
-});
+const rig = appInBrowserForFile({ prepare: seedDemo });
 
 type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
 
@@ -41,14 +28,10 @@ async function seriousViolations(page: Page): Promise<AxeViolation[]> {
 
 describe("the rules page", () => {
   test("the demo lead previews a threshold change and reads the what-if counts", { timeout: 180_000 }, async () => {
-    const { page } = browser;
-    await page.goto(`${app.url}/sign-in`);
-    await page.getByLabel("E-mail address").fill("lead@demo.gloaming.test");
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in", exact: true }).click();
-    await page.waitForURL(/\/sites$/);
+    const { page } = rig.browser;
+    await signInAs(page, rig.app.url, "lead@demo.gloaming.test");
 
-    await page.goto(`${app.url}/rules`);
+    await page.goto(`${rig.app.url}/rules`);
     await page.getByRole("heading", { level: 1, name: "Rules" }).waitFor();
     const threshold = page.getByRole("spinbutton", { name: / value$/ }).first();
     const before = Number(await threshold.inputValue());

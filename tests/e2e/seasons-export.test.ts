@@ -1,7 +1,7 @@
 import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { createSessionFor, createSiteFor, createUserWithGroup } from "@/tests/support/db";
-import { launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
+import { addSessionCookies, launchBrowser, screenshot, startApp, type BrowserSession, type RunningApp } from "@/tests/support/browser";
 import { datesBetween, insertEvenings } from "@/tests/features/seasons/evening-rows";
 import { unzipBuffer } from "@/tests/features/exports/unzip";
 import type { LabelKey } from "@/lib/ui/label-badge";
@@ -38,8 +38,7 @@ describe("seasons and export in the browser", () => {
     };
     await insertEvenings(north.id, dates.map((date, i) => ({ date, auto: label(date, i) })));
     await insertEvenings(south.id, dates.map((date, i) => ({ date, auto: label(date, i + 1), final: i % 17 === 0 ? "local" : undefined, note: i % 17 === 0 ? "=checked by hand" : undefined })));
-    const { cookieName, cookieValue } = await createSessionFor(user.id);
-    await browser.context.addCookies([{ name: cookieName, value: cookieValue, url: app.url }]);
+    await addSessionCookies(browser.context, app.url, await createSessionFor(user.id));
     const { page } = browser;
 
     await page.goto(`${app.url}/seasons`);

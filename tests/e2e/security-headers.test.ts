@@ -1,7 +1,7 @@
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import type { Page } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
 import {
   createSessionFor,
@@ -10,13 +10,7 @@ import {
   TEST_PASSWORD,
   type TestUser,
 } from "@/tests/support/db";
-import {
-  launchBrowser,
-  screenshot,
-  startApp,
-  type BrowserSession,
-  type RunningApp,
-} from "@/tests/support/browser";
+import { appInBrowserForFile, screenshot } from "@/tests/support/browser";
 import { insertEvenings } from "@/tests/features/review/fixtures";
 
 /*
@@ -25,37 +19,32 @@ import { insertEvenings } from "@/tests/features/review/fixtures";
  * (the pages hydrate and run with the policy in force). The evenings are synthetic fixtures.
  */
 
-let app: RunningApp;
-let browser: BrowserSession;
 let person: TestUser;
 let siteId: number;
 let eveningId: number;
 
-beforeAll(async () => {
-  const { user, group } = await createUserWithGroup({ role: "analyst" });
-  person = user;
-  const site = await createSiteFor(group.id, { name: "Synthetic header tower" });
-  siteId = site.id;
-  const ids = await insertEvenings(site.id, [
-    { date: "2024-06-03" },
-    { date: "2024-06-04", autoLabel: "advective" },
-  ]);
-  eveningId = ids[0] as number;
-  app = await startApp();
-  browser = await launchBrowser();
+const rig = appInBrowserForFile({
+  prepare: async () => {
+    const { user, group } = await createUserWithGroup({ role: "analyst" });
+    person = user;
+    const site = await createSiteFor(group.id, { name: "Synthetic header tower" });
+    siteId = site.id;
+    const ids = await insertEvenings(site.id, [
+      { date: "2024-06-03" },
+      { date: "2024-06-04", autoLabel: "advective" },
+    ]);
+    eveningId = ids[0] as number;
+  },
   // Violations reach the page as events before any app script runs; keep them on window.
-  await browser.context.addInitScript(() => {
-    const w = window as unknown as { __cspViolations: string[] };
-    w.__cspViolations = [];
-    document.addEventListener("securitypolicyviolation", (e) => {
-      w.__cspViolations.push(`${e.violatedDirective} ${e.blockedURI} ${e.sourceFile}:${e.lineNumber}`);
-    });
-  });
-}, 600_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await app?.stop();
+  afterLaunch: ({ browser }) =>
+    browser.context.addInitScript(() => {
+      const w = window as unknown as { __cspViolations: string[] };
+      w.__cspViolations = [];
+      document.addEventListener("securitypolicyviolation", (e) => {
+        w.__cspViolations.push(`${e.violatedDirective} ${e.blockedURI} ${e.sourceFile}:${e.lineNumber}`);
+      });
+    }),
+  timeoutMs: 600_000,
 });
 
 /** Console messages about the policy (chromium logs each refused load or inline script). */
@@ -96,10 +85,10 @@ describe("security headers and the content security policy", () => {
     "sign-in, calendar and evening page: headers present, no policy violation",
     { timeout: 180_000 },
     async () => {
-      const { page } = browser;
+      const { page } = rig.browser;
       const consoleSeen = watchConsole(page);
 
-      const signInPage = await page.goto(`${app.url}/sign-in`);
+      const signInPage = await page.goto(`${rig.app.url}/sign-in`);
       expectSecurityHeaders((await signInPage?.allHeaders()) ?? {});
       // Sign in through the form: the server action passes Next's Origin check and ours.
       await page.getByLabel("E-mail address").fill(person.email);
@@ -108,7 +97,7 @@ describe("security headers and the content security policy", () => {
       await page.waitForURL(/\/sites$/);
       expect(await violations(page)).toEqual([]);
 
-      const calendar = await page.goto(`${app.url}/sites/${siteId}/calendar?month=2024-06`);
+      const calendar = await page.goto(`${rig.app.url}/sites/${siteId}/calendar?month=2024-06`);
       expectSecurityHeaders((await calendar?.allHeaders()) ?? {});
       await page.getByRole("grid", { name: "June 2024" }).waitFor();
       await page.locator('a[data-date="2024-06-03"]').waitFor();
@@ -116,14 +105,14 @@ describe("security headers and the content security policy", () => {
       expect(await violations(page)).toEqual([]);
       await screenshot(page, "security-headers-calendar");
 
-      const evening = await page.goto(`${app.url}/sites/${siteId}/evenings/${eveningId}`);
+      const evening = await page.goto(`${rig.app.url}/sites/${siteId}/evenings/${eveningId}`);
       expectSecurityHeaders((await evening?.allHeaders()) ?? {});
       await page.getByRole("heading", { level: 1 }).waitFor();
       await page.waitForLoadState("networkidle");
       expect(await violations(page)).toEqual([]);
 
       // Route handlers carry the same headers.
-      const api = await page.request.get(`${app.url}/api/sites/${siteId}`);
+      const api = await page.request.get(`${rig.app.url}/api/sites/${siteId}`);
       expect(api.status()).toBe(200);
       expectSecurityHeaders(api.headers());
 
@@ -146,7 +135,7 @@ describe("security headers and the content security policy", () => {
     expect(actionId).toBeTruthy();
     const { sessionId, cookieName, cookieValue } = await createSessionFor(person.id);
     const post = (origin: string) =>
-      fetch(`${app.url}/sites`, {
+      fetch(`${rig.app.url}/sites`, {
         method: "POST",
         redirect: "manual",
         headers: {
@@ -165,7 +154,7 @@ describe("security headers and the content security policy", () => {
     await foreign.text();
     expect(await alive()).toBe(true);
 
-    const own = await post(app.url);
+    const own = await post(rig.app.url);
     await own.text();
     expect(await alive()).toBe(false);
   });

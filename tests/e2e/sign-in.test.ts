@@ -1,33 +1,15 @@
-import { afterAll, beforeAll, describe, expect, test } from "vitest";
+import { describe, expect, test } from "vitest";
 import { DEMO_SITE } from "@/lib/demo/scenario";
-import {
-  launchBrowser,
-  screenshot,
-  startApp,
-  type BrowserSession,
-  type RunningApp,
-} from "@/tests/support/browser";
+import { screenshot, appInBrowserForFile } from "@/tests/support/browser";
 import { seedDemo } from "@/tests/support/db";
 
-let app: RunningApp;
-let browser: BrowserSession;
-
-beforeAll(async () => {
-  await seedDemo();
-  app = await startApp();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await app?.stop();
-});
+const rig = appInBrowserForFile({ prepare: seedDemo });
 
 // The tests share one browser profile and run in order: refused, signed in, narrow screen.
 describe("signing in as the demo analyst", () => {
   test("a wrong password is refused with a message and the address kept", async () => {
-    const { page } = browser;
-    await page.goto(`${app.url}/sign-in`);
+    const { page } = rig.browser;
+    await page.goto(`${rig.app.url}/sign-in`);
     await page.getByLabel("E-mail address").fill("viewer@demo.gloaming.test");
     await page.getByLabel("Password").fill("not-the-password");
     await page.getByRole("button", { name: "Sign in", exact: true }).click();
@@ -37,8 +19,8 @@ describe("signing in as the demo analyst", () => {
   });
 
   test("the demo account fills in with one click and leads to the site list", async () => {
-    const { page } = browser;
-    await page.goto(`${app.url}/`);
+    const { page } = rig.browser;
+    await page.goto(`${rig.app.url}/`);
     await page.waitForURL(/\/sign-in$/);
     await screenshot(page, "sign-in");
 
@@ -66,9 +48,9 @@ describe("signing in as the demo analyst", () => {
   });
 
   test("on a narrow screen the menu opens the navigation", async () => {
-    const { page } = browser;
+    const { page } = rig.browser;
     await page.setViewportSize({ width: 390, height: 780 });
-    await page.goto(`${app.url}/sites`);
+    await page.goto(`${rig.app.url}/sites`);
     const menu = page.getByRole("button", { name: "Menu" });
     await menu.click();
     expect(await menu.getAttribute("aria-expanded")).toBe("true");
@@ -79,9 +61,9 @@ describe("signing in as the demo analyst", () => {
   });
 
   test("signing out from the account menu, then the demo lead sees field errors on a new site", async () => {
-    const { page } = browser;
+    const { page } = rig.browser;
     await page.setViewportSize({ width: 1280, height: 800 });
-    await page.goto(`${app.url}/sites`);
+    await page.goto(`${rig.app.url}/sites`);
     // The account button is named by its visible text first (the signed-in analyst), then its purpose.
     await page.getByRole("button", { name: /^Demo Analyst \(invented\).*your account$/ }).click();
     await page.getByRole("button", { name: "Sign out" }).click();

@@ -5,6 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import {
+  addSessionCookies,
   launchBrowser,
   screenshot,
   startApp,
@@ -32,11 +33,7 @@ beforeAll(async () => {
   cookie = `${s.cookieName}=${s.cookieValue}; gloaming_group=${group.id}`;
   app = await startApp({ env: { DATABASE_URL: server.url } });
   browser = await launchBrowser();
-  const url = new URL(app.url);
-  await browser.context.addCookies([
-    { name: s.cookieName, value: s.cookieValue, domain: url.hostname, path: "/" },
-    { name: "gloaming_group", value: String(group.id), domain: url.hostname, path: "/" },
-  ]);
+  await addSessionCookies(browser.context, app.url, s, group.id);
 }, 900_000);
 
 afterAll(async () => {

@@ -9,7 +9,8 @@ import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { chromium, type BrowserContext, type Page } from "playwright-core";
-import { inject } from "vitest";
+import { afterAll, beforeAll, inject } from "vitest";
+import { DEMO_PASSWORD } from "@/lib/demo/scenario";
 
 const root = process.cwd();
 export const RESULTS_DIR = path.join(root, "test-results");
@@ -183,4 +184,76 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   const file = path.join(RESULTS_DIR, `${name.replace(/[^A-Za-z0-9._-]+/g, "-")}.png`);
   await page.screenshot({ path: file, fullPage: true });
   return file;
+}
+
+/**
+ * Signs in through the sign-in form (the real server action) and waits for the page it leads to:
+ * the site list unless `landing` says otherwise. The password defaults to the demo accounts' one.
+ */
+export async function signInAs(
+  page: Page,
+  appUrl: string,
+  email: string,
+  opts: { password?: string; landing?: RegExp | ((url: URL) => boolean) } = {},
+): Promise<void> {
+  await page.goto(`${appUrl}/sign-in`);
+  await page.getByLabel("E-mail address").fill(email);
+  await page.getByLabel("Password", { exact: true }).fill(opts.password ?? DEMO_PASSWORD);
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
+  await page.waitForURL(opts.landing ?? /\/sites$/);
+}
+
+/**
+ * Hands the browser a session made in the database (`createSessionFor` of tests/support/db.ts),
+ * and the active group when given, without going through the form.
+ */
+export async function addSessionCookies(
+  context: BrowserContext,
+  appUrl: string,
+  session: { cookieName: string; cookieValue: string },
+  groupId?: number,
+): Promise<void> {
+  await context.addCookies([
+    { name: session.cookieName, value: session.cookieValue, url: appUrl },
+    ...(groupId === undefined ? [] : [{ name: "gloaming_group", value: String(groupId), url: appUrl }]),
+  ]);
+}
+
+export type AppInBrowser = { readonly app: RunningApp; readonly browser: BrowserSession };
+
+/**
+ * For a browser test file: before its tests, runs `prepare` (seeding), starts the app and a
+ * browser, then `afterLaunch`; after them, closes both. Read `app` and `browser` inside tests only.
+ */
+export function appInBrowserForFile(
+  opts: {
+    prepare?: () => Promise<unknown>;
+    afterLaunch?: (rig: AppInBrowser) => Promise<unknown>;
+    env?: Record<string, string>;
+    timeoutMs?: number;
+  } = {},
+): AppInBrowser {
+  let app: RunningApp | undefined;
+  let browser: BrowserSession | undefined;
+  const rig: AppInBrowser = {
+    get app() {
+      if (!app) throw new Error("the app is not started yet (use it inside a test)");
+      return app;
+    },
+    get browser() {
+      if (!browser) throw new Error("the browser is not launched yet (use it inside a test)");
+      return browser;
+    },
+  };
+  beforeAll(async () => {
+    await opts.prepare?.();
+    app = await startApp(opts.env ? { env: opts.env } : {});
+    browser = await launchBrowser();
+    await opts.afterLaunch?.(rig);
+  }, opts.timeoutMs);
+  afterAll(async () => {
+    await browser?.close();
+    await app?.stop();
+  });
+  return rig;
 }
