@@ -18,6 +18,7 @@ import {
   type TestUser,
 } from "@/tests/support/db";
 import { FakeClient, formData, type Outcome } from "@/tests/support/next";
+import { syntheticSiteFields } from "@/tests/support/sites";
 import { insertEvenings } from "@/tests/features/review/fixtures";
 import { syntheticCsv, uploadRequest } from "@/tests/features/imports/helpers";
 
@@ -234,18 +235,8 @@ type RouteCase = {
   call: (w: World) => { url: string; init?: RequestInit | (() => Request) };
 };
 
-/** An invented tower set-up with a fresh name; the route takes it as JSON, the action as a form. */
-const siteFields = () => ({
-  name: `Matrix site ${uniqueTag()}`,
-  latitude: 46.1,
-  longitude: 7.4,
-  elevationM: 820,
-  measurementHeightM: 32,
-  canopyHeightM: 24,
-  displacementHeightM: 16,
-  utcOffsetHours: 1,
-  notes: "synthetic test site",
-});
+/** A fresh name each time; the route takes the fields as JSON, the action as a form. */
+const siteFields = () => syntheticSiteFields(`Matrix site ${uniqueTag()}`);
 
 const siteBody = (w: World) => ({ groupId: w.groupId, ...siteFields() });
 

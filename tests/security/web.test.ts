@@ -19,6 +19,7 @@ import {
   uniqueTag,
 } from "@/tests/support/db";
 import { FakeClient, formData } from "@/tests/support/next";
+import { syntheticSiteFields } from "@/tests/support/sites";
 
 /*
  * Web security of the request path: the Origin check on cookie-authenticated requests, early
@@ -35,18 +36,7 @@ vi.mock("@/features/sites/server/queries", async (importOriginal) => {
 const APP_ORIGIN = new URL(env.APP_URL).origin;
 const EVIL = "https://tower-data.invalid"; // RFC 6761 reserved name: never a real site
 
-const siteBody = (groupId: number) => ({
-  groupId,
-  name: `Origin site ${uniqueTag()}`,
-  latitude: 46.1,
-  longitude: 7.4,
-  elevationM: 820,
-  measurementHeightM: 32,
-  canopyHeightM: 24,
-  displacementHeightM: 16,
-  utcOffsetHours: 1,
-  notes: "synthetic test site",
-});
+const siteBody = (groupId: number) => ({ groupId, ...syntheticSiteFields(`Origin site ${uniqueTag()}`) });
 
 const post = (path: string, body: unknown, headers: Record<string, string> = {}) =>
   new Request(`${APP_ORIGIN}${path}`, {

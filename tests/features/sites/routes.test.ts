@@ -5,23 +5,13 @@ import type { Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
 import { addMember, clientFor, createSiteFor, createUserWithGroup, uniqueTag } from "@/tests/support/db";
 import { FakeClient } from "@/tests/support/next";
+import { syntheticSiteFields } from "@/tests/support/sites";
 
 const BASE = "http://localhost:3000";
 
 // An invented tower set-up; heights are plausible for a temperate forest (common practice).
 function validBody(overrides: Record<string, unknown> = {}) {
-  return {
-    name: `Route site ${uniqueTag()}`,
-    latitude: 46.1,
-    longitude: 7.4,
-    elevationM: 820,
-    measurementHeightM: 32,
-    canopyHeightM: 24,
-    displacementHeightM: 16,
-    utcOffsetHours: 1,
-    notes: "synthetic test site",
-    ...overrides,
-  };
+  return { ...syntheticSiteFields(`Route site ${uniqueTag()}`), ...overrides };
 }
 
 const req = (path: string, init?: RequestInit) =>
