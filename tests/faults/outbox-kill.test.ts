@@ -185,7 +185,9 @@ async function killThenFinish(ids: number[], points: KillPoint[]): Promise<void>
   }
   const done = await deliverInChild(ids, null);
   expect(done.code, done.out).toBe(0);
-  for (const row of await rowsOf(ids)) expect(row.status, `row ${row.id}`).toBe("sent");
+  const finished = await rowsOf(ids);
+  expect(finished).toHaveLength(ids.length);
+  for (const row of finished) expect(row.status, `row ${row.id}`).toBe("sent");
 }
 
 describe("worker killed while sending mail", () => {
@@ -202,6 +204,7 @@ describe("worker killed while sending mail", () => {
 
     const allIds = scenarios.flatMap((s) => s.ids);
     const rows = await rowsOf(allIds);
+    expect(rows).toHaveLength(7);
     const stored = caught();
     const dropped = repeats();
     let acceptedOverSmtp = 0;

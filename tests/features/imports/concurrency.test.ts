@@ -102,7 +102,7 @@ describe("two workers on the same import at once", () => {
         const deadline = Date.now() + 150_000;
         while (Date.now() < deadline) {
           if ((await ended(first)) && (await ended(second))) return;
-          if (!(await runOnce({ handlers: importJobHandlers, heartbeatMs: 1000 })))
+          if (!(await runOnce({ handlers: importJobHandlers, heartbeatMs: 1000, jobIds: [...ids] })))
             await new Promise((r) => setTimeout(r, 20));
         }
       };

@@ -59,7 +59,7 @@ export async function upload(client: FakeClient, siteId: number, content: string
   return { res, body: (await res.json()) as UploadBody };
 }
 
-/** Runs the import handlers until job `jobId` has ended; returns it. */
+/** Runs job `jobId` (and no other file's job) until it has ended; returns it. */
 export async function drain(jobId: number, timeoutMs = 120_000): Promise<Job> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
@@ -67,7 +67,7 @@ export async function drain(jobId: number, timeoutMs = 120_000): Promise<Job> {
     if (!job) throw new Error(`job ${jobId} is missing`);
     if (job.status !== "queued" && job.status !== "running") return job;
     if (Date.now() > deadline) throw new Error(`job ${jobId} did not end (status ${job.status}, phase ${job.phase})`);
-    const ran = await runOnce({ handlers: importJobHandlers, heartbeatMs: 1000 });
+    const ran = await runOnce({ handlers: importJobHandlers, heartbeatMs: 1000, jobIds: [jobId] });
     if (!ran) await new Promise((r) => setTimeout(r, 50));
   }
 }
