@@ -2,7 +2,8 @@ import { createRequire } from "node:module";
 import type { Page } from "playwright-core";
 import { describe, expect, test } from "vitest";
 import { screenshot, signInAs, appInBrowserForFile } from "@/tests/support/browser";
-import { seedDemo } from "@/tests/support/db";
+import { db } from "@/lib/db/knex";
+import { seedDemoData } from "@/db/seeds/02_demo_data";
 
 /*
  * The demo lead previews a threshold change on /rules: the what-if counts by label before and
@@ -11,7 +12,9 @@ import { seedDemo } from "@/tests/support/db";
 
 const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
 
-const rig = appInBrowserForFile({ prepare: seedDemo });
+// The editor needs a rule set and the preview evenings: the demo data gives both (it seeds the
+// scenario too), so the test does not depend on another file having imported them first.
+const rig = appInBrowserForFile({ prepare: () => seedDemoData(db) });
 
 type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
 
