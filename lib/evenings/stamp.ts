@@ -22,19 +22,26 @@ import { db } from "@/lib/db/knex";
 export type StampScope = { siteIds: readonly number[]; from?: string | null; to?: string | null };
 
 /**
+ * The query of the change stamp of the evenings in `scope`: one row, one column `stamp`. Other
+ * queries can select it as a subquery (`stampQuery(scope).as("stamp")`) to read it in the same
+ * round trip as what they read.
+ */
+export function stampQuery(scope: StampScope, q: Knex | Knex.Transaction = db): Knex.QueryBuilder {
+  const query = q("evenings")
+    .whereIn("site_id", [...scope.siteIds])
+    .select(q.raw("CONCAT(COUNT(*), '.', COALESCE(SUM(id), 0), '.', COALESCE(SUM(version), 0)) AS stamp"));
+  if (scope.from) query.where("local_date", ">=", scope.from);
+  if (scope.to) query.where("local_date", "<=", scope.to);
+  return query;
+}
+
+/**
  * The change stamp of the evenings in `scope`, as text ("count.sumId.sumVersion"). Equal stamps
  * of one scope mean equal stored evenings. Pass `q` (a transaction) to read it in the snapshot
  * of the data it stands for.
  */
 export async function eveningsStamp(scope: StampScope, q: Knex | Knex.Transaction = db): Promise<string> {
-  const query = q("evenings")
-    .whereIn("site_id", [...scope.siteIds])
-    .first<{ stamp: string } | undefined>(
-      q.raw("CONCAT(COUNT(*), '.', COALESCE(SUM(id), 0), '.', COALESCE(SUM(version), 0)) AS stamp"),
-    );
-  if (scope.from) query.where("local_date", ">=", scope.from);
-  if (scope.to) query.where("local_date", "<=", scope.to);
-  const row = await query;
+  const row = (await stampQuery(scope, q).first()) as { stamp: string } | undefined;
   return row?.stamp ?? "0.0.0";
 }
 

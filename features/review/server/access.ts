@@ -3,6 +3,7 @@ import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
+import { stampQuery } from "@/lib/evenings/stamp";
 
 /*
  * Who is asking and what they may see. Every reader and mutation of this feature goes through
@@ -30,42 +31,59 @@ function check(role: Role | null, minimum: Role): Role {
   return role;
 }
 
-type SiteRow = {
-  id: number;
-  role: string | null;
-  group_id: number;
-  name: string;
-  latitude: number;
-  longitude: number;
-  utc_offset_hours: number | string;
+/** The columns `judgeAccess` reads, added to a query by `ACCESS_COLUMNS`. */
+export type AccessRow = {
+  access_site_id: number;
+  access_role: string | null;
+  access_group_id: number;
+  access_site_name: string;
+  access_latitude: number;
+  access_longitude: number;
+  access_utc_offset_hours: number | string;
 };
 
-function toReviewSite(r: SiteRow): ReviewSite {
+/**
+ * The site and the caller's membership, under names of their own so that they can sit beside
+ * another table's columns in one row (queries that read the data and its access in one trip).
+ */
+export const ACCESS_COLUMNS = [
+  "s.id as access_site_id",
+  "m.role as access_role",
+  "s.group_id as access_group_id",
+  "s.name as access_site_name",
+  "s.latitude as access_latitude",
+  "s.longitude as access_longitude",
+  "s.utc_offset_hours as access_utc_offset_hours",
+];
+
+function toReviewSite(r: AccessRow): ReviewSite {
   return {
-    id: r.id,
-    groupId: r.group_id,
-    name: r.name,
-    latitude: r.latitude,
-    longitude: r.longitude,
-    utcOffsetHours: Number(r.utc_offset_hours),
+    id: r.access_site_id,
+    groupId: r.access_group_id,
+    name: r.access_site_name,
+    latitude: r.access_latitude,
+    longitude: r.access_longitude,
+    utcOffsetHours: Number(r.access_utc_offset_hours),
   };
 }
 
 // The site and the caller's membership come back in one round trip (a left join: no row means no
 // such site, a null role means the caller is not in its group).
-function siteColumns(): string[] {
-  return [...["id", "group_id", "name", "latitude", "longitude", "utc_offset_hours"].map((c) => `s.${c}`), "m.role"];
-}
-
 function withMembership(q: Knex.QueryBuilder, userId: string): Knex.QueryBuilder {
   return q.leftJoin("memberships as m", function () {
     this.on("m.group_id", "=", "s.group_id").andOn("m.user_id", "=", db.raw("?", [userId]));
   });
 }
 
-function judged(row: SiteRow | undefined, minimum: Role): { site: ReviewSite; role: Role } {
+/** Adds the site of `evenings as e` and `userId`'s membership of its group to a query (see ACCESS_COLUMNS). */
+export function withEveningAccess(q: Knex.QueryBuilder, userId: string): Knex.QueryBuilder {
+  return withMembership(q.join("sites as s", "s.id", "e.site_id"), userId);
+}
+
+/** The site and role an access row grants at `minimum`; throws not_found or forbidden. */
+export function judgeAccess(row: AccessRow | undefined, minimum: Role): { site: ReviewSite; role: Role } {
   if (!row) throw new AuthError("not_found");
-  const role = check(row.role !== null && isRole(row.role) ? row.role : null, minimum);
+  const role = check(row.access_role !== null && isRole(row.access_role) ? row.access_role : null, minimum);
   return { site: toReviewSite(row), role };
 }
 
@@ -75,10 +93,27 @@ export async function siteAccess(
   siteId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: SiteRow | undefined = await withMembership(db("sites as s").where("s.id", siteId), user.id).first(
-    siteColumns(),
+  const row: AccessRow | undefined = await withMembership(db("sites as s").where("s.id", siteId), user.id).first(
+    ACCESS_COLUMNS,
   );
-  return judged(row, minimum);
+  return judgeAccess(row, minimum);
+}
+
+/**
+ * Like siteAccess, with the change stamp of the site's evenings in `range` (lib/evenings/stamp.ts)
+ * read in the same round trip.
+ */
+export async function siteAccessStamped(
+  user: SessionUser,
+  siteId: number,
+  range: { from: string; to: string },
+  minimum: Role = "viewer",
+): Promise<{ site: ReviewSite; role: Role; stamp: string }> {
+  const row: (AccessRow & { stamp: string | null }) | undefined = await withMembership(
+    db("sites as s").where("s.id", siteId),
+    user.id,
+  ).first([...ACCESS_COLUMNS, stampQuery({ siteIds: [siteId], ...range }).as("stamp")]);
+  return { ...judgeAccess(row, minimum), stamp: row?.stamp ?? "0.0.0" };
 }
 
 /** The site of an evening `user` may see with at least `minimum`, and their role. */
@@ -87,9 +122,8 @@ export async function eveningAccess(
   eveningId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: SiteRow | undefined = await withMembership(
-    db("evenings as e").join("sites as s", "s.id", "e.site_id").where("e.id", eveningId),
-    user.id,
-  ).first(siteColumns());
-  return judged(row, minimum);
+  const row: AccessRow | undefined = await withEveningAccess(db("evenings as e").where("e.id", eveningId), user.id).first(
+    ACCESS_COLUMNS,
+  );
+  return judgeAccess(row, minimum);
 }

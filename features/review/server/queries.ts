@@ -1,4 +1,6 @@
 import "server-only";
+import { promisify } from "node:util";
+import { gzip as gzipCallback } from "node:zlib";
 import { db } from "@/lib/db/knex";
 import { emptyMetrics, type EveningMetrics } from "@/lib/classify/evenings";
 import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
@@ -30,6 +32,7 @@ import { flagsByDate } from "@/features/review/flags";
  */
 
 const HOUR_MS = 3_600_000;
+const gzipAsync = promisify(gzipCallback);
 const ISO_UTC = "'%Y-%m-%dT%H:%i:%sZ'";
 
 const SUMMARY_COLUMNS = [
@@ -110,11 +113,16 @@ function roundedJson(v: unknown, fallback: unknown): string {
   );
 }
 
-/** A calendar answer: the JSON body as bytes and its entity tag. */
-export type CalendarBody = { body: Uint8Array<ArrayBuffer>; etag: string };
+/**
+ * A calendar answer: the JSON body as bytes, the same gzip-compressed (for clients that accept it,
+ * which every browser does: compressed once per change instead of on every request), and the
+ * entity tag of each.
+ */
+export type CalendarBody = { body: Uint8Array<ArrayBuffer>; gzip: Uint8Array<ArrayBuffer>; etag: string; gzipEtag: string };
 
 // Built bodies, valid only at the change stamp of their site and period (lib/evenings/stamp.ts).
-// A site-year is about 200 kB; 48 MB holds every month and year a department has open.
+// A site-year is about 300 kB plain and 35 kB compressed; 48 MB holds every month and year a
+// department has open.
 const calendarCache = new StampedCache<CalendarBody>(400, 48 * 1024 * 1024);
 // Bumped when the shape of the body changes, so that no browser keeps an old body on a 304.
 const CALENDAR_FORMAT = "c1";
@@ -143,17 +151,22 @@ async function buildCalendar(siteId: number, range: DateRange) {
       `"reviewed":${r.reviewed ? "true" : "false"},"version":${Number(r.version)}}`,
   );
   const body = new TextEncoder().encode(`{"evenings":[${parts.join(",")}]}`);
-  return { stamp, value: { body, etag: `"${CALENDAR_FORMAT}.${stamp}"` }, bytes: body.byteLength };
+  const packed = await gzipAsync(body);
+  const gzip = new Uint8Array(packed.buffer.slice(packed.byteOffset, packed.byteOffset + packed.byteLength));
+  const etag = `"${CALENDAR_FORMAT}.${stamp}"`;
+  const value = { body, gzip, etag, gzipEtag: `"${CALENDAR_FORMAT}.${stamp}.gz"` };
+  return { stamp, value, bytes: body.byteLength + gzip.byteLength };
 }
 
 /**
  * The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`, metrics to four
- * significant digits) and its ETag. Each call reads the period's change stamp (one small
- * query) and serves the body built at that stamp from memory, building it when the evenings
- * changed since: a change is visible to the very next request.
+ * significant digits) with its ETag, plain and compressed. Pass the period's change stamp when
+ * it was read already (siteAccessStamped reads it with the access check); otherwise it is read
+ * here. The body built at that stamp is served from memory and rebuilt when the evenings changed
+ * since: a change is visible to the very next request.
  */
-export async function listEveningsBody(siteId: number, range: DateRange): Promise<CalendarBody> {
-  const stamp = await eveningsStamp({ siteIds: [siteId], ...range });
+export async function listEveningsBody(siteId: number, range: DateRange, knownStamp?: string): Promise<CalendarBody> {
+  const stamp = knownStamp ?? (await eveningsStamp({ siteIds: [siteId], ...range }));
   return calendarCache.get(`${siteId}|${range.from}|${range.to}`, stamp, () => buildCalendar(siteId, range));
 }
 

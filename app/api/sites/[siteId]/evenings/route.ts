@@ -1,7 +1,7 @@
 import { AuthError } from "@/lib/auth/session";
-import { handleRouteError } from "@/lib/http/respond";
+import { acceptsGzip, handleRouteError } from "@/lib/http/respond";
 import { idSchema, rangeSchema } from "@/features/review/schemas";
-import { caller, siteAccess } from "@/features/review/server/access";
+import { caller, siteAccessStamped } from "@/features/review/server/access";
 import { listEveningsBody } from "@/features/review/server/queries";
 
 type Context = { params: Promise<{ siteId: string }> };
@@ -10,23 +10,30 @@ type Context = { params: Promise<{ siteId: string }> };
 // a 304 while the ETag (the evenings' change stamp) still matches.
 const CACHE_CONTROL = "private, no-cache";
 
+function matches(ifNoneMatch: string | null, etag: string): boolean {
+  return ifNoneMatch !== null && ifNoneMatch.split(",").some((t) => t.trim().replace(/^W\//, "") === etag);
+}
+
 // GET /api/sites/:siteId/evenings?from=YYYY-MM-DD&to=YYYY-MM-DD - the labelled evenings of a period
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
     const user = await caller(request);
     const siteId = idSchema.safeParse((await ctx.params).siteId);
     if (!siteId.success) throw new AuthError("not_found");
-    await siteAccess(user, siteId.data);
     const q = new URL(request.url).searchParams;
     const range = rangeSchema.parse({ from: q.get("from") ?? undefined, to: q.get("to") ?? undefined });
-    const { body, etag } = await listEveningsBody(siteId.data, range);
-    const seen = request.headers.get("if-none-match");
-    if (seen !== null && seen.split(",").some((t) => t.trim().replace(/^W\//, "") === etag)) {
-      return new Response(null, { status: 304, headers: { etag, "cache-control": CACHE_CONTROL } });
-    }
-    return new Response(body, {
-      headers: { "content-type": "application/json; charset=utf-8", etag, "cache-control": CACHE_CONTROL },
-    });
+    // access and the change stamp in one round trip; a refusal still comes before any evening is read
+    const { stamp } = await siteAccessStamped(user, siteId.data, range);
+    const answer = await listEveningsBody(siteId.data, range, stamp);
+    // The compressed body was made once, when the evenings last changed; a client that takes
+    // gzip gets it as is (the server's own compression leaves an encoded body alone).
+    const gzip = acceptsGzip(request);
+    const etag = gzip ? answer.gzipEtag : answer.etag;
+    const headers: Record<string, string> = { etag, "cache-control": CACHE_CONTROL, vary: "Accept-Encoding" };
+    if (matches(request.headers.get("if-none-match"), etag)) return new Response(null, { status: 304, headers });
+    headers["content-type"] = "application/json; charset=utf-8";
+    if (gzip) headers["content-encoding"] = "gzip";
+    return new Response(gzip ? answer.gzip : answer.body, { headers });
   } catch (err) {
     return handleRouteError(err);
   }
