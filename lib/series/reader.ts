@@ -576,17 +576,22 @@ export async function readTable(input: TableInput, options: ReadOptions): Promis
     const nFields = headers.length;
     const role = fieldRole;
     const delim = delimiter;
-        const len = text.length;
+    const len = text.length;
     const lastTsField = Math.max(tsA, tsB);
+    // Lines end where papaparse ends them: at the newline found in the first chunk ("\r" alone
+    // in CR-only files). A CR before an LF is dropped only in LF files, where papaparse would
+    // leave it in the last cell and Number() ignores it.
+    const nl = newline === "\r" || newline === "\r\n" ? newline : "\n";
+    const stripCr = nl === "\n";
     let pos = 0;
     while (pos <= len) {
-      let eol = text.indexOf("\n", pos);
+      let eol = text.indexOf(nl, pos);
       if (eol < 0) eol = len;
       let lineEnd = eol;
-      if (lineEnd > pos && text.charCodeAt(lineEnd - 1) === 13) lineEnd--;
+      if (stripCr && lineEnd > pos && text.charCodeAt(lineEnd - 1) === 13) lineEnd--;
       line++;
       const lineStart = pos;
-      pos = eol + 1;
+      pos = eol + nl.length;
       const firstDelim = text.indexOf(delim, lineStart);
       if ((firstDelim < 0 || firstDelim >= lineEnd) && text.slice(lineStart, lineEnd).trim() === "") continue;
 
