@@ -93,9 +93,10 @@ export async function siteAccess(
   siteId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: AccessRow | undefined = await withMembership(db("sites as s").where("s.id", siteId), user.id).first(
-    ACCESS_COLUMNS,
-  );
+  const row: AccessRow | undefined = await withMembership(
+    db("sites as s").where("s.id", siteId),
+    user.id,
+  ).first(ACCESS_COLUMNS);
   return judgeAccess(row, minimum);
 }
 
@@ -122,8 +123,9 @@ export async function eveningAccess(
   eveningId: number,
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role }> {
-  const row: AccessRow | undefined = await withEveningAccess(db("evenings as e").where("e.id", eveningId), user.id).first(
-    ACCESS_COLUMNS,
-  );
+  const row: AccessRow | undefined = await withEveningAccess(
+    db("evenings as e").where("e.id", eveningId),
+    user.id,
+  ).first(ACCESS_COLUMNS);
   return judgeAccess(row, minimum);
 }

@@ -1,6 +1,7 @@
 import "server-only";
 import { promisify } from "node:util";
 import { gzip as gzipCallback } from "node:zlib";
+import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
 import { emptyMetrics, type EveningMetrics } from "@/lib/classify/evenings";
 import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
@@ -19,7 +20,15 @@ import type {
 } from "@/features/review/schemas";
 import { thresholdRows } from "@/features/review/thresholds";
 import { rankQueue, type QueueInput } from "@/features/review/queue";
-import type { ReviewSite } from "@/features/review/server/access";
+import {
+  ACCESS_COLUMNS,
+  judgeAccess,
+  withEveningAccess,
+  type AccessRow,
+  type ReviewSite,
+} from "@/features/review/server/access";
+import type { SessionUser } from "@/lib/auth/session";
+import type { Role } from "@/lib/auth/roles";
 import { eveningsStamp, StampedCache } from "@/lib/evenings/stamp";
 import { TRACER_SLOTS } from "@/lib/evenings/load";
 import { anomaliesInRange, weakTurbulenceForSite } from "@/lib/anomalies/server/queries";
@@ -118,7 +127,12 @@ function roundedJson(v: unknown, fallback: unknown): string {
  * which every browser does: compressed once per change instead of on every request), and the
  * entity tag of each.
  */
-export type CalendarBody = { body: Uint8Array<ArrayBuffer>; gzip: Uint8Array<ArrayBuffer>; etag: string; gzipEtag: string };
+export type CalendarBody = {
+  body: Uint8Array<ArrayBuffer>;
+  gzip: Uint8Array<ArrayBuffer>;
+  etag: string;
+  gzipEtag: string;
+};
 
 // Built bodies, valid only at the change stamp of their site and period (lib/evenings/stamp.ts).
 // A site-year is about 300 kB plain and 35 kB compressed; 48 MB holds every month and year a
@@ -165,7 +179,11 @@ async function buildCalendar(siteId: number, range: DateRange) {
  * here. The body built at that stamp is served from memory and rebuilt when the evenings changed
  * since: a change is visible to the very next request.
  */
-export async function listEveningsBody(siteId: number, range: DateRange, knownStamp?: string): Promise<CalendarBody> {
+export async function listEveningsBody(
+  siteId: number,
+  range: DateRange,
+  knownStamp?: string,
+): Promise<CalendarBody> {
   const stamp = knownStamp ?? (await eveningsStamp({ siteIds: [siteId], ...range }));
   return calendarCache.get(`${siteId}|${range.from}|${range.to}`, stamp, () => buildCalendar(siteId, range));
 }
@@ -214,6 +232,8 @@ type DetailRow = SummaryRow & {
   reviewed_at: string | null;
   previous_ref: string | null;
   next_ref: string | null;
+  history_json: unknown;
+  tracers_json: unknown;
 };
 
 const MEASURES: Array<{
@@ -242,18 +262,32 @@ const MEASURES: Array<{
 
 const TRACER_COLUMNS = Array.from({ length: TRACER_SLOTS }, (_, i) => `tracer_${i + 1}`);
 
+type Tracer = { slot: number; name: string; unit: string };
+
+// The tracer slots in use at a site, as one JSON array read inside another query.
+const TRACERS_JSON = `CAST((SELECT JSON_ARRAYAGG(JSON_OBJECT('slot', t.slot, 'name', t.name, 'unit', t.unit) ORDER BY t.slot)
+   FROM site_series t WHERE t.site_id = e.site_id) AS CHAR) AS tracers_json`;
+
+async function tracersOf(siteId: number): Promise<Tracer[]> {
+  return db("site_series")
+    .where({ site_id: siteId })
+    .orderBy("slot")
+    .select<Tracer[]>("slot", "name", "unit");
+}
+
 /** The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. */
-export async function eveningSeries(siteId: number, centreMs: number): Promise<EveningSeries> {
-  // Every tracer slot is read beside the names of the slots in use, so neither waits for the other.
+export async function eveningSeries(
+  siteId: number,
+  centreMs: number,
+  knownTracers?: Tracer[],
+): Promise<EveningSeries> {
   const cols = [...MEASURES.map((m) => m.col), ...TRACER_COLUMNS];
   // Periods that overlap the window: a half-hour starting 30 min before it still reaches in.
   const fromMs = centreMs - 4 * HOUR_MS - 30 * 60_000;
   const toMs = centreMs + 4 * HOUR_MS;
+  // Every tracer slot is read beside the names of the slots in use, so neither waits for the other.
   const [tracers, rows] = await Promise.all([
-    db("site_series")
-      .where({ site_id: siteId })
-      .orderBy("slot")
-      .select<Array<{ slot: number; name: string; unit: string }>>("slot", "name", "unit"),
+    knownTracers ?? tracersOf(siteId),
     db("half_hours")
       .where("site_id", siteId)
       .where("start_utc", ">", new Date(fromMs))
@@ -284,41 +318,54 @@ export async function eveningSeries(siteId: number, centreMs: number): Promise<E
   return { timeMs: starts.map((s) => s + half), periodMinutes, columns };
 }
 
+type HistoryRow = {
+  id: number;
+  kind: HistoryEntry["kind"];
+  fromLabel: Label | null;
+  toLabel: Label | null;
+  note: string | null;
+  user: string | null;
+  ruleSetVersion: number | null;
+  at: string;
+};
+
+// The history of the evening, as one JSON array read inside the detail query. JSON_ARRAYAGG is
+// bounded by group_concat_max_len: a history too long for it comes back cut short and is read
+// again with its own query (`history`). The arrays travel as text (CAST AS CHAR), so that a cut
+// one reaches jsonArray() instead of failing in the driver's own JSON parsing.
+const HISTORY_JSON = `CAST((SELECT JSON_ARRAYAGG(JSON_OBJECT('id', v.id, 'kind', v.kind, 'fromLabel', v.from_label,
+     'toLabel', v.to_label, 'note', v.note, 'user', u.display_name, 'ruleSetVersion', v.rule_set_version,
+     'at', DATE_FORMAT(v.created_at, '%Y-%m-%dT%H:%i:%s.%fZ')) ORDER BY v.id)
+   FROM evening_events v LEFT JOIN users u ON u.id = v.user_id WHERE v.evening_id = e.id) AS CHAR) AS history_json`;
+
+function toHistory(rows: HistoryRow[]): HistoryEntry[] {
+  // %f gives microseconds; keep milliseconds like JavaScript does
+  return rows.map((r) => ({ ...r, id: Number(r.id), at: r.at.replace(/\.(\d{3})\d*Z$/, ".$1Z") }));
+}
+
 async function history(eveningId: number): Promise<HistoryEntry[]> {
-  const rows: Array<{
-    id: number;
-    kind: HistoryEntry["kind"];
-    from_label: Label | null;
-    to_label: Label | null;
-    note: string | null;
-    display_name: string | null;
-    rule_set_version: number | null;
-    at: string;
-  }> = await db("evening_events as v")
+  const rows: HistoryRow[] = await db("evening_events as v")
     .leftJoin("users as u", "u.id", "v.user_id")
     .where("v.evening_id", eveningId)
     .orderBy("v.id")
     .select(
       "v.id",
       "v.kind",
-      "v.from_label",
-      "v.to_label",
+      "v.from_label as fromLabel",
+      "v.to_label as toLabel",
       "v.note",
-      "u.display_name",
-      "v.rule_set_version",
+      "u.display_name as user",
+      "v.rule_set_version as ruleSetVersion",
       db.raw("DATE_FORMAT(v.created_at, '%Y-%m-%dT%H:%i:%s.%fZ') AS at"),
     );
-  return rows.map((r) => ({
-    id: Number(r.id),
-    kind: r.kind,
-    fromLabel: r.from_label,
-    toLabel: r.to_label,
-    note: r.note,
-    user: r.display_name,
-    ruleSetVersion: r.rule_set_version,
-    // %f gives microseconds; keep milliseconds like JavaScript does
-    at: r.at.replace(/\.(\d{3})\d*Z$/, ".$1Z"),
-  }));
+  return toHistory(rows);
+}
+
+// A JSON array built by the database, or null when it is missing or cut short.
+function jsonArray<T>(v: unknown): T[] | null {
+  if (v === null || v === undefined) return [];
+  const value = parsed<unknown>(v, null);
+  return Array.isArray(value) ? (value as T[]) : null;
 }
 
 // The previous and next evening of the site, as "id date", read by the detail query itself.
@@ -336,13 +383,12 @@ function neighbourOf(ref: string | null): { id: number; date: string } | null {
   return id && date ? { id: Number(id), date } : null;
 }
 
-/** Everything the evening page shows. Throws AuthError("not_found") for an unknown id. */
-export async function getEveningDetail(eveningId: number, site: ReviewSite): Promise<EveningDetail> {
-  const row: DetailRow | undefined = await db("evenings as e")
+// The evening row with everything read beside it: reviewer, neighbours, history and tracer names.
+function detailQuery(eveningId: number): Knex.QueryBuilder {
+  return db("evenings as e")
     .leftJoin("users as r", "r.id", "e.reviewed_by")
     .where("e.id", eveningId)
-    .where("e.site_id", site.id)
-    .first([
+    .select([
       ...SUMMARY_COLUMNS.map((c) => (typeof c === "string" ? `e.${c}` : c)),
       "e.site_id",
       "e.margins",
@@ -354,8 +400,13 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
       db.raw(`DATE_FORMAT(e.reviewed_at, ${ISO_UTC}) AS reviewed_at`),
       neighbourRef("previous"),
       neighbourRef("next"),
-    ]);
-  if (!row) throw new AuthError("not_found");
+      db.raw(HISTORY_JSON),
+      db.raw(TRACERS_JSON),
+    ])
+    .limit(1);
+}
+
+async function assembleDetail(row: DetailRow, site: ReviewSite): Promise<EveningDetail> {
   const summary = toSummary(row);
   const margins = parsed<Record<string, number>>(row.margins, {});
   const { rules, name } = await ruleSetById(row.rule_set_id);
@@ -367,9 +418,11 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
     startMs: centreMs + rules.windows[w].startMinutes * 60_000,
     endMs: centreMs + rules.windows[w].endMinutes * 60_000,
   }));
-  const [events, series] = await Promise.all([history(eveningId), eveningSeries(site.id, centreMs)]);
-  const previous = neighbourOf(row.previous_ref);
-  const next = neighbourOf(row.next_ref);
+  const storedHistory = jsonArray<HistoryRow>(row.history_json);
+  const [events, series] = await Promise.all([
+    storedHistory ? toHistory(storedHistory) : history(summary.id),
+    eveningSeries(site.id, centreMs, jsonArray<Tracer>(row.tracers_json) ?? undefined),
+  ]);
   return {
     evening: {
       ...summary,
@@ -388,8 +441,35 @@ export async function getEveningDetail(eveningId: number, site: ReviewSite): Pro
     ruleDescription: rules.rules.find((r) => r.id === summary.rule)?.description ?? null,
     history: events,
     series,
-    neighbours: { previous, next },
+    neighbours: { previous: neighbourOf(row.previous_ref), next: neighbourOf(row.next_ref) },
   };
+}
+
+/**
+ * Everything the evening page shows, for a caller who may see `site` (checked already).
+ * Throws AuthError("not_found") for an unknown id or an evening of another site.
+ */
+export async function getEveningDetail(eveningId: number, site: ReviewSite): Promise<EveningDetail> {
+  const rows = (await detailQuery(eveningId).where("e.site_id", site.id)) as DetailRow[];
+  const row = rows[0];
+  if (!row) throw new AuthError("not_found");
+  return assembleDetail(row, site);
+}
+
+/**
+ * Everything the evening page shows, if `user` may see the evening (at least `minimum`):
+ * the access check is read by the same query as the evening, and the half-hours after it.
+ */
+export async function eveningDetailFor(
+  user: SessionUser,
+  eveningId: number,
+  minimum: Role = "viewer",
+): Promise<EveningDetail> {
+  const rows: Array<DetailRow & AccessRow> = await withEveningAccess(detailQuery(eveningId), user.id).select(
+    ACCESS_COLUMNS,
+  );
+  const { site } = judgeAccess(rows[0], minimum);
+  return assembleDetail(rows[0]!, site);
 }
 
 /** The evenings of a period ranked by how much they need a person (see rankQueue). */

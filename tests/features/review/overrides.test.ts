@@ -296,6 +296,36 @@ describe("GET /api/evenings/:id and the queue", () => {
     expect(s.series.columns.map((c) => c.key)).toEqual(["W_SIGMA", "USTAR", "WS", "WD", "ZL", "H", "TA"]);
   });
 
+  test("the history comes whole and in order, with notes as written, also when longer than the database's JSON aggregate limit", async () => {
+    const { site: s, ids, clients } = await scene();
+    const note = `front passed: "TA" fell <3 K> in 1 h; ümlaut \\ backslash`;
+    expect((await override(clients.analyst, ids[0], { label: "advective", note, version: 1 })).status).toBe(200);
+    const d = await detail(clients.viewer, ids[0]);
+    expect(d.history.map((h) => h.kind)).toEqual(["auto", "override"]);
+    expect(d.history[1]).toMatchObject({ fromLabel: "local", toLabel: "advective", note, user: "Test analyst" });
+    expect(d.history[1]?.at).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/);
+    await db("site_series").insert([
+      { site_id: s.id, slot: 2, name: "N2O", unit: "nmol/mol" },
+      { site_id: s.id, slot: 1, name: "O3", unit: "nmol/mol" },
+    ]);
+    const withTracers = await detail(clients.viewer, ids[0]);
+    expect(withTracers.series.columns.slice(-2).map((c) => c.key)).toEqual(["tracer_1", "tracer_2"]);
+
+    // More history than one JSON_ARRAYAGG may hold: the detail falls back to reading it row by row.
+    const { limit } = (await db.select(db.raw("@@group_concat_max_len AS `limit`")).first()) as { limit: number };
+    const many = Math.ceil(Number(limit) / 2000) + 10;
+    expect(many, "rows needed to pass group_concat_max_len").toBeLessThan(20_000);
+    const long = "x".repeat(1990);
+    for (let i = 0; i < many; i += 500)
+      await db("evening_events").insert(
+        Array.from({ length: Math.min(500, many - i) }, (_, k) => ({ evening_id: ids[2], kind: "reviewed", note: `${i + k} ${long}` })),
+      );
+    const big = await detail(clients.viewer, ids[2]);
+    expect(big.history.length).toBe(many + 1);
+    expect(big.history[0]?.kind).toBe("auto");
+    expect(big.history.slice(1).map((h) => Number(h.note?.split(" ")[0]))).toEqual(Array.from({ length: many }, (_, k) => k));
+  });
+
   test("the queue puts unclassified first, then the smallest margin, reviewed last", async () => {
     const { site: s, ids, clients } = await scene();
     await clients.analyst.call(() =>

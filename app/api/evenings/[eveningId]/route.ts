@@ -1,8 +1,8 @@
 import { AuthError } from "@/lib/auth/session";
 import { handleRouteError, json } from "@/lib/http/respond";
 import { idSchema } from "@/features/review/schemas";
-import { caller, eveningAccess } from "@/features/review/server/access";
-import { getEveningDetail } from "@/features/review/server/queries";
+import { caller } from "@/features/review/server/access";
+import { eveningDetailFor } from "@/features/review/server/queries";
 
 type Context = { params: Promise<{ eveningId: string }> };
 
@@ -12,8 +12,7 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
     const user = await caller(request);
     const id = idSchema.safeParse((await ctx.params).eveningId);
     if (!id.success) throw new AuthError("not_found");
-    const { site } = await eveningAccess(user, id.data);
-    return json(await getEveningDetail(id.data, site));
+    return json(await eveningDetailFor(user, id.data));
   } catch (err) {
     return handleRouteError(err);
   }
