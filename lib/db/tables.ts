@@ -161,6 +161,20 @@ export type HalfHourRow = {
   tracer_8: number | null;
 };
 
+/**
+ * Summary of one site's stored half_hours for the site list, kept true by the import write
+ * (features/imports/server/write.ts) in the transaction that writes or deletes the rows.
+ */
+export type SiteCoverageRow = {
+  site_id: number;
+  /** rows stored, values or not */
+  stored_half_hours: number;
+  /** rows with at least one value */
+  present_half_hours: number;
+  first_start_utc: Date | null;
+  last_start_utc: Date | null;
+};
+
 export type EveningRow = {
   id: number;
   site_id: number;
@@ -378,6 +392,10 @@ declare module "knex/types/tables" {
     >;
     site_series: Table<SiteSeriesRow, never>;
     half_hours: Table<HalfHourRow, NullableKeys<HalfHourRow>>;
+    site_coverage: Table<
+      SiteCoverageRow,
+      "stored_half_hours" | "present_half_hours" | NullableKeys<SiteCoverageRow>
+    >;
     evenings: Table<
       EveningRow,
       "id" | "computed_at" | "label_source" | "reviewed" | "version" | NullableKeys<EveningRow>
