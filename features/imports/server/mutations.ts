@@ -7,6 +7,7 @@ import { deleteObject } from "@/lib/storage/storage";
 import type { ImportSettings, ImportSummary, OverlapChoice } from "@/features/imports/schemas";
 import type { ImportSiteRow } from "@/features/imports/server/access";
 import { getImport, getImportRow, splitSettings } from "@/features/imports/server/queries";
+import { deleteImportHalfHours } from "@/features/imports/server/write";
 
 export const IMPORT_JOB = "import";
 export const RECOMPUTE_JOB = "recompute";
@@ -219,7 +220,7 @@ export async function deleteImport(
     return { ok: false, status: 409, message: "This import was already deleted." };
   const hadRows = row.status === "landed";
   await db.transaction(async (trx) => {
-    if (hadRows) await trx("half_hours").where({ site_id: site.id, import_id: importId }).delete();
+    if (hadRows) await deleteImportHalfHours(trx, site.id, importId);
     await trx("imports")
       .where({ id: importId })
       .update({ status: purge ? "purged" : "deleted" });

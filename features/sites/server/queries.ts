@@ -2,8 +2,7 @@ import "server-only";
 import { db } from "@/lib/db/knex";
 import { AuthError, requireRole, requireSession } from "@/lib/auth/session";
 import type { Role } from "@/lib/auth/roles";
-import type { SiteRow } from "@/lib/db/tables";
-import { MEASURE_COLUMNS, TRACER_SLOTS } from "@/lib/evenings/load";
+import type { SiteCoverageRow, SiteRow } from "@/lib/db/tables";
 import { LABEL_ORDER } from "@/lib/ui/label-badge";
 import type { LabelCounts, Site, SiteCoverage, SiteSummary } from "@/features/sites/schemas";
 
@@ -28,33 +27,29 @@ export function toSite(row: SiteRow): Site {
 
 const HALF_HOUR_MS = 30 * 60_000;
 
-/** Every value column of half_hours: a period counts as present when one of them holds a value. */
-const VALUE_COLUMNS = [
-  ...Object.values(MEASURE_COLUMNS),
-  ...Array.from({ length: TRACER_SLOTS }, (_, i) => `tracer_${i + 1}`),
-];
-
-type CoverageRow = { site_id: number; first_utc: Date; last_utc: Date; present: number | string };
+type CoverageRow = Pick<SiteCoverageRow, "site_id" | "present_half_hours"> & {
+  first_start_utc: Date;
+  last_start_utc: Date;
+};
 type LabelCountRow = { site_id: number; label: keyof LabelCounts; n: number | string };
 
 /**
  * Sites of one group with their summaries, by name. The caller has checked membership.
- * Three queries whatever the number of sites: the sites, then half-hours and evenings each
+ * Three queries whatever the number of sites: the sites, their stored coverage summaries
+ * (site_coverage, kept by the import write, so no half-hour is read here) and the evenings
  * grouped by site.
  */
 export async function listSites(groupId: number): Promise<SiteSummary[]> {
   const groupSites = db("sites").select("id").where({ group_id: groupId });
   const [rows, coverage, labels] = await Promise.all([
     db("sites").where({ group_id: groupId }).orderBy("name"),
-    db("half_hours")
+    // A site whose rows were all deleted keeps a row with nothing stored: no coverage then.
+    db("site_coverage")
       .whereIn("site_id", groupSites)
-      .groupBy("site_id")
-      .select<CoverageRow[]>(
-        "site_id",
-        db.raw("MIN(start_utc) AS first_utc"),
-        db.raw("MAX(start_utc) AS last_utc"),
-        db.raw(`COUNT(COALESCE(${VALUE_COLUMNS.map(() => "??").join(", ")})) AS present`, VALUE_COLUMNS),
-      ),
+      .where("stored_half_hours", ">", 0)
+      .whereNotNull("first_start_utc")
+      .whereNotNull("last_start_utc")
+      .select<CoverageRow[]>("site_id", "present_half_hours", "first_start_utc", "last_start_utc"),
     db("evenings")
       .whereIn("site_id", groupSites)
       .groupBy("site_id", "final_label")
@@ -81,11 +76,12 @@ export async function listSites(groupId: number): Promise<SiteSummary[]> {
 
 function toCoverage(c: CoverageRow, labelCounts: LabelCounts | null): SiteCoverage {
   // The table holds half-hourly periods; the span counts both ends.
-  const spanHalfHours = Math.round((c.last_utc.getTime() - c.first_utc.getTime()) / HALF_HOUR_MS) + 1;
-  const presentHalfHours = Number(c.present);
+  const spanHalfHours =
+    Math.round((c.last_start_utc.getTime() - c.first_start_utc.getTime()) / HALF_HOUR_MS) + 1;
+  const presentHalfHours = Number(c.present_half_hours);
   return {
-    firstUtc: c.first_utc.toISOString(),
-    lastUtc: c.last_utc.toISOString(),
+    firstUtc: c.first_start_utc.toISOString(),
+    lastUtc: c.last_start_utc.toISOString(),
     presentHalfHours,
     spanHalfHours,
     share: presentHalfHours / spanHalfHours,

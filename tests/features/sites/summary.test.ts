@@ -1,25 +1,37 @@
 import { beforeAll, describe, expect, test } from "vitest";
 import { GET } from "@/app/api/sites/route";
 import { db } from "@/lib/db/knex";
+import { MEASURE_COLUMNS, TRACER_SLOTS } from "@/lib/evenings/load";
+import type { HalfHourTable } from "@/lib/series/types";
 import { DEMO_GROUP_NAME, DEMO_SITE } from "@/lib/demo/scenario";
 import type { LabelKey } from "@/lib/ui/label-badge";
 import { seedDemoData } from "@/db/seeds/02_demo_data";
-import type { LabelCounts, SiteSummary } from "@/features/sites/schemas";
+import type { LabelCounts, SiteCoverage, SiteSummary } from "@/features/sites/schemas";
+import { deleteSiteAction } from "@/features/sites/server/actions";
 import { listSites } from "@/features/sites/server/queries";
+import { deleteImportAction } from "@/features/imports/server/actions";
+import { planColumns, writeHalfHours } from "@/features/imports/server/write";
 import { clientFor, createSiteFor, createUserWithGroup } from "@/tests/support/db";
+import { analystWithSite, importFile, syntheticCsv } from "@/tests/features/imports/helpers";
 
 const HALF_HOUR_MS = 30 * 60_000;
 const START = Date.parse("2024-03-01T00:00:00Z");
 
-/** `slots` half-hours after START; slots in `empty` are stored with every value NULL (a file's missing code). */
+/**
+ * `slots` half-hours after START, written by the import write (as an import without overlap
+ * would, so the stored coverage follows); slots in `empty` have every value missing (a file's
+ * missing code).
+ */
 async function insertHalfHours(siteId: number, slots: readonly number[], empty: readonly number[] = []) {
-  await db("half_hours").insert(
-    slots.map((i) => ({
-      site_id: siteId,
-      start_utc: new Date(START + i * HALF_HOUR_MS),
-      ...(empty.includes(i) ? {} : { ws: 1.5, w_sigma: 0.3, tracer_2: 12 }),
-    })),
-  );
+  const values = (v: number) => Float64Array.from(slots, (i) => (empty.includes(i) ? NaN : v));
+  const table: HalfHourTable = {
+    startMs: Float64Array.from(slots, (i) => START + i * HALF_HOUR_MS),
+    periodMinutes: 30,
+    columns: { WS: values(1.5), W_SIGMA: values(0.3), O3: values(12) },
+    units: { WS: "m s-1", W_SIGMA: "m s-1", O3: "ppb" },
+  };
+  const plan = planColumns(table, new Map([["O3", 2]]));
+  await db.transaction((trx) => writeHalfHours(trx, siteId, 0, table, plan, null));
 }
 
 /** Evenings with an automatic label and, where given, an override on top. */
@@ -78,6 +90,69 @@ function expectMatchesSql(summary: SiteSummary | undefined, sql: Awaited<ReturnT
     share: sql.present / sql.span,
     evenings: sql.evenings,
   });
+}
+
+/*
+ * The site list's coverage as it was computed before site_coverage existed: a scan of every
+ * stored half-hour of the group's sites on each load. Kept here as the reference the stored
+ * summary must equal.
+ */
+const VALUE_COLUMNS = [
+  ...Object.values(MEASURE_COLUMNS),
+  ...Array.from({ length: TRACER_SLOTS }, (_, i) => `tracer_${i + 1}`),
+];
+type FullScanRow = { site_id: number; first_utc: Date; last_utc: Date; present: number | string };
+
+async function fullScanCoverage(groupId: number): Promise<Map<number, Omit<SiteCoverage, "evenings">>> {
+  const rows = await db("half_hours")
+    .whereIn("site_id", db("sites").select("id").where({ group_id: groupId }))
+    .groupBy("site_id")
+    .select<FullScanRow[]>(
+      "site_id",
+      db.raw("MIN(start_utc) AS first_utc"),
+      db.raw("MAX(start_utc) AS last_utc"),
+      db.raw(`COUNT(COALESCE(${VALUE_COLUMNS.map(() => "??").join(", ")})) AS present`, VALUE_COLUMNS),
+    );
+  return new Map(
+    rows.map((c) => {
+      const spanHalfHours = Math.round((c.last_utc.getTime() - c.first_utc.getTime()) / HALF_HOUR_MS) + 1;
+      const presentHalfHours = Number(c.present);
+      return [
+        c.site_id,
+        {
+          firstUtc: c.first_utc.toISOString(),
+          lastUtc: c.last_utc.toISOString(),
+          presentHalfHours,
+          spanHalfHours,
+          share: presentHalfHours / spanHalfHours,
+        },
+      ];
+    }),
+  );
+}
+
+/** Every card of the group shows the coverage the full scan gives (null where it finds no rows). */
+async function expectCardsMatchFullScan(groupId: number): Promise<SiteSummary[]> {
+  const [sites, reference] = await Promise.all([listSites(groupId), fullScanCoverage(groupId)]);
+  for (const site of sites) {
+    const want = reference.get(site.id);
+    if (want) expect(site.coverage, site.name).toEqual({ ...want, evenings: site.coverage?.evenings });
+    else expect(site.coverage, site.name).toBeNull();
+  }
+  return sites;
+}
+
+/** Every `every`-th data line of a CSV with all values at the missing code: stored, but not present. */
+function blankEvery(csv: string, every: number): string {
+  const [header = "", ...lines] = csv.split("\n");
+  return [
+    header,
+    ...lines.map((line, i) => {
+      if (i % every !== 0 || line === "") return line;
+      const [start, end, ...values] = line.split(",");
+      return [start, end, ...values.map(() => "-9999")].join(",");
+    }),
+  ].join("\n");
 }
 
 /** Number of SQL statements `fn` sends through the app's pool. */
@@ -185,5 +260,83 @@ describe("site summary on the demo data", () => {
     expect(sql.evenings).toBeGreaterThan(700);
     expect(sql.present).toBeLessThan(sql.span);
     expectMatchesSql(summary, sql);
+    await expectCardsMatchFullScan(g.id);
   });
+});
+
+// SYNTHETIC files (lib/synthetic, invented data) through the real upload and import job.
+describe("stored coverage follows every write of half-hours", () => {
+  test(
+    "after an import, a replace over an overlap, a keep, a second site and a delete",
+    { timeout: 300_000 },
+    async () => {
+      const { client, site, groupId } = await analystWithSite("lead");
+
+      // four days with every 5th period missing in full
+      const first = await importFile(
+        client,
+        site.id,
+        blankEvery(syntheticCsv(4, { startDate: "2022-03-01" }), 5),
+      );
+      expect(first.imp.status).toBe("landed");
+      const afterFirst = (await expectCardsMatchFullScan(groupId))[0]?.coverage;
+      expect(afterFirst).toMatchObject({
+        spanHalfHours: 4 * 48,
+        presentHalfHours: 4 * 48 - Math.ceil((4 * 48) / 5),
+      });
+
+      // replace: two days inside and two after, complete, so the replaced periods gain values
+      const replacing = syntheticCsv(4, { startDate: "2022-03-03", seed: 3 });
+      const replaced = await importFile(client, site.id, replacing, { settings: { overlap: "replace" } });
+      expect(replaced.imp).toMatchObject({ status: "landed", overlapChoice: "replace" });
+      const afterReplace = (await expectCardsMatchFullScan(groupId))[0]?.coverage;
+      expect(afterReplace?.spanHalfHours).toBe(6 * 48);
+      expect(afterReplace?.presentHalfHours).toBeGreaterThan((afterFirst?.presentHalfHours ?? 0) + 2 * 48);
+
+      // replace again with gaps over the middle: stored periods lose their values
+      const gappy = blankEvery(syntheticCsv(2, { startDate: "2022-03-02", seed: 4 }), 2);
+      await importFile(client, site.id, gappy, { settings: { overlap: "replace" } });
+      const afterGaps = (await expectCardsMatchFullScan(groupId))[0]?.coverage;
+      expect(afterGaps?.presentHalfHours).toBeLessThan(afterReplace?.presentHalfHours ?? 0);
+
+      // keep: a file reaching a day earlier only adds that day
+      const kept = await importFile(client, site.id, syntheticCsv(3, { startDate: "2022-02-28", seed: 5 }), {
+        settings: { overlap: "keep" },
+      });
+      expect(kept.imp).toMatchObject({ status: "landed", rowsWritten: 48 });
+      expect((await expectCardsMatchFullScan(groupId))[0]?.coverage?.spanHalfHours).toBe(7 * 48);
+
+      // a second site of the group gets its own coverage; the first one's stays as it was
+      const before = (await listSites(groupId))[0]?.coverage;
+      const second = await createSiteFor(groupId, { name: `${site.name} (second)`, utc_offset_hours: 1 });
+      expect((await expectCardsMatchFullScan(groupId)).find((s) => s.id === second.id)?.coverage).toBeNull();
+      await importFile(client, second.id, syntheticCsv(2, { startDate: "2023-07-01", seed: 9 }));
+      const both = await expectCardsMatchFullScan(groupId);
+      expect(both.find((s) => s.id === site.id)?.coverage).toEqual(before);
+      expect(both.find((s) => s.id === second.id)?.coverage).toMatchObject({ spanHalfHours: 2 * 48 });
+
+      // deleting the import that holds the first day moves the start; deleting the rest empties the card
+      const del = await client.call(() => deleteImportAction(site.id, kept.imp.id, false));
+      expect(del).toMatchObject({ ok: true });
+      const afterDelete = (await expectCardsMatchFullScan(groupId)).find((s) => s.id === site.id)?.coverage;
+      expect(afterDelete?.firstUtc).toBe(afterFirst?.firstUtc);
+      for (const imp of [first.imp, replaced.imp]) {
+        expect(await client.call(() => deleteImportAction(site.id, imp.id, false))).toMatchObject({
+          ok: true,
+        });
+        await expectCardsMatchFullScan(groupId);
+      }
+      const gappyImport: { id: number } = await db("imports")
+        .where({ site_id: site.id, status: "landed" })
+        .first("id");
+      expect(await client.call(() => deleteImportAction(site.id, gappyImport.id, false))).toMatchObject({
+        ok: true,
+      });
+      expect((await expectCardsMatchFullScan(groupId)).find((s) => s.id === site.id)?.coverage).toBeNull();
+
+      // a deleted site takes its summary with it
+      expect(await client.call(() => deleteSiteAction(second.id))).toMatchObject({ ok: true });
+      expect(await db("site_coverage").where({ site_id: second.id }).first()).toBeUndefined();
+    },
+  );
 });
