@@ -80,6 +80,19 @@ async function trySetCookie(name: string, value: string, attributes: CookieAttrs
   }
 }
 
+// Only the Bearer scheme is ours; other schemes (a proxy's Basic credentials) leave the cookie in charge.
+function isBearer(authorization: string | null): authorization is string {
+  return authorization !== null && /^bearer\b/i.test(authorization);
+}
+
+// A bearer header is judged by its token alone: a bad or revoked token is nobody, whatever cookie came with it.
+async function tokenSession(authorization: string): Promise<CurrentSession | null> {
+  const secret = bearerSecret(authorization);
+  const found = secret ? await userForTokenSecret(secret) : null;
+  if (!found) return null;
+  return { user: { id: found.id, email: found.email, displayName: found.displayName }, sessionId: `token:${found.tokenId}` };
+}
+
 /**
  * The signed-in person of this request, or null. Cached per request. A request with
  * `Authorization: Bearer <token>` (scripts) is judged by its personal API token alone; its
@@ -88,12 +101,7 @@ async function trySetCookie(name: string, value: string, attributes: CookieAttrs
  */
 export const getCurrentSession = cache(async (): Promise<CurrentSession | null> => {
   const authorization = (await headers()).get("authorization");
-  if (authorization !== null && /^bearer\b/i.test(authorization)) {
-    const secret = bearerSecret(authorization);
-    const found = secret ? await userForTokenSecret(secret) : null;
-    if (!found) return null;
-    return { user: { id: found.id, email: found.email, displayName: found.displayName }, sessionId: `token:${found.tokenId}` };
-  }
+  if (isBearer(authorization)) return tokenSession(authorization);
   const sessionId = (await cookies()).get(lucia.sessionCookieName)?.value;
   if (!sessionId) return null;
   assertSameOrigin(await headers());
@@ -112,7 +120,22 @@ export const getCurrentSession = cache(async (): Promise<CurrentSession | null> 
 
 /** The signed-in person; throws AuthError("unauthenticated") when there is none. */
 export async function requireSession(): Promise<CurrentSession> {
-  const current = await getCurrentSession();
+  return requestCaller();
+}
+
+/**
+ * Who is asking, for route handlers, actions and pages: the person of `request`'s
+ * `Authorization: Bearer` token when it carries one (judged by the token alone, so an invalid
+ * token is refused even beside a valid cookie), else the session of this request scope as
+ * getCurrentSession() reads it (a cookie with another site's Origin throws CrossOriginError).
+ * In a Next route handler the Request and next/headers carry the same headers; the Request is
+ * read as well because in-process callers (tests, scripts) may hand over a Request whose
+ * headers the surrounding scope does not have. Throws AuthError("unauthenticated") when nobody
+ * is identified.
+ */
+export async function requestCaller(request?: Request): Promise<CurrentSession> {
+  const authorization = request?.headers.get("authorization") ?? null;
+  const current = isBearer(authorization) ? await tokenSession(authorization) : await getCurrentSession();
   if (!current) throw new AuthError("unauthenticated");
   return current;
 }

@@ -1,22 +1,11 @@
 import "server-only";
 import { db } from "@/lib/db/knex";
 import type { SiteRow } from "@/lib/db/tables";
-import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
-import { authenticateRequest } from "@/lib/auth/tokens";
+import { AuthError, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 
 /** The site as the export reads it (the sites row without its timestamps). */
 export type ExportSite = Omit<SiteRow, "created_at" | "updated_at">;
-
-/** Who asks: a script's `Authorization: Bearer` API token when it sends one, else the session cookie. */
-export async function callerOf(request?: Request): Promise<SessionUser> {
-  if (request && /^bearer\b/i.test(request.headers.get("authorization") ?? "")) {
-    const who = await authenticateRequest(request);
-    if (!who) throw new AuthError("unauthenticated");
-    return who.user;
-  }
-  return (await requireSession()).user;
-}
 
 /** A site `user` may see with at least `minimum`; other groups' sites are simply not found. */
 export async function exportSite(

@@ -1,6 +1,5 @@
 import "server-only";
-import { AuthError, getCurrentSession } from "@/lib/auth/session";
-import { authenticateRequest } from "@/lib/auth/tokens";
+import { AuthError } from "@/lib/auth/session";
 import { roleAtLeast, type Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
 import type { SiteRow } from "@/lib/db/tables";
@@ -20,24 +19,8 @@ export type ImportSiteRow = Pick<
   | "utc_offset_hours"
 >;
 
+/** Whom an import check is for (the person requestCaller() or requireSession() identified, or a job's creator). */
 export type Caller = { userId: string };
-
-/**
- * Who is asking: the session cookie, or (for scripts) an `Authorization: Bearer` token.
- * Throws AuthError("unauthenticated") when neither identifies anyone.
- */
-export async function callerOf(request?: Request): Promise<Caller> {
-  // A bearer header is judged by the token alone; otherwise the session cookie (read through
-  // next/headers, the same cookie the request carries).
-  if (request?.headers.get("authorization")) {
-    const who = await authenticateRequest(request);
-    if (!who) throw new AuthError("unauthenticated");
-    return { userId: who.user.id };
-  }
-  const session = await getCurrentSession();
-  if (!session) throw new AuthError("unauthenticated");
-  return { userId: session.user.id };
-}
 
 /** Role of a user in a group, or null when not a member. */
 export async function roleIn(userId: string, groupId: number): Promise<Role | null> {

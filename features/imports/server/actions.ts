@@ -2,9 +2,9 @@
 
 import { revalidatePath } from "next/cache";
 import { flattenError } from "zod";
-import { AuthError } from "@/lib/auth/session";
+import { AuthError, requireSession } from "@/lib/auth/session";
 import { overlapChoiceSchema, recomputeSchema } from "@/features/imports/schemas";
-import { callerOf, siteForCaller } from "@/features/imports/server/access";
+import { siteForCaller } from "@/features/imports/server/access";
 import { deleteImport, queueRecompute, resolveOverlap } from "@/features/imports/server/mutations";
 
 export type ImportActionState = {
@@ -28,9 +28,9 @@ export async function resolveOverlapAction(siteId: number, importId: number, cho
   try {
     const parsed = overlapChoiceSchema.safeParse(choice);
     if (!parsed.success) return { ok: false, message: "Choose replace, keep or cancel." };
-    const caller = await callerOf();
-    const { site } = await siteForCaller(caller, siteId, "analyst");
-    const result = await resolveOverlap(site, caller.userId, importId, parsed.data);
+    const { user } = await requireSession();
+    const { site } = await siteForCaller({ userId: user.id }, siteId, "analyst");
+    const result = await resolveOverlap(site, user.id, importId, parsed.data);
     revalidatePath(`/sites/${siteId}/imports`);
     return result.ok ? { ok: true, jobId: result.jobId } : { ok: false, message: result.message };
   } catch (err) {
@@ -41,9 +41,9 @@ export async function resolveOverlapAction(siteId: number, importId: number, cho
 /** Deletes an import's rows (analyst); `purge` also removes the original file (lead). */
 export async function deleteImportAction(siteId: number, importId: number, purge: boolean): Promise<ImportActionState> {
   try {
-    const caller = await callerOf();
-    const { site } = await siteForCaller(caller, siteId, purge ? "lead" : "analyst");
-    const result = await deleteImport(site, caller.userId, importId, purge);
+    const { user } = await requireSession();
+    const { site } = await siteForCaller({ userId: user.id }, siteId, purge ? "lead" : "analyst");
+    const result = await deleteImport(site, user.id, importId, purge);
     revalidatePath(`/sites/${siteId}/imports`);
     if (!result.ok) return { ok: false, message: result.message };
     return { ok: true, jobId: result.recomputeJobId, message: purge ? "Rows and original removed." : "Rows removed; the original file is kept." };
@@ -57,9 +57,9 @@ export async function recomputeAction(_prev: ImportActionState, formData: FormDa
   try {
     const parsed = recomputeSchema.safeParse({ siteId: formData.get("siteId"), from: formData.get("from"), to: formData.get("to") });
     if (!parsed.success) return { ok: false, fieldErrors: flattenError(parsed.error).fieldErrors, message: "Check the period." };
-    const caller = await callerOf();
-    const { site } = await siteForCaller(caller, parsed.data.siteId, "analyst");
-    const jobId = await queueRecompute(site, caller.userId, parsed.data.from, parsed.data.to);
+    const { user } = await requireSession();
+    const { site } = await siteForCaller({ userId: user.id }, parsed.data.siteId, "analyst");
+    const jobId = await queueRecompute(site, user.id, parsed.data.from, parsed.data.to);
     return { ok: true, jobId, message: `Recomputing ${parsed.data.from} to ${parsed.data.to}.` };
   } catch (err) {
     return authMessage(err);

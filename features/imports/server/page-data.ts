@@ -1,10 +1,10 @@
 import "server-only";
 import { notFound, redirect } from "next/navigation";
-import { AuthError } from "@/lib/auth/session";
+import { AuthError, requireSession } from "@/lib/auth/session";
 import type { Role } from "@/lib/auth/roles";
 import { db } from "@/lib/db/knex";
 import type { ImportSummary, ImportTemplate } from "@/features/imports/schemas";
-import { callerOf, siteForCaller, type ImportSiteRow } from "@/features/imports/server/access";
+import { siteForCaller, type ImportSiteRow } from "@/features/imports/server/access";
 import { getTemplate, listImports } from "@/features/imports/server/queries";
 
 export type ImportPageData = {
@@ -22,7 +22,7 @@ export async function loadImportPage(rawSiteId: string): Promise<ImportPageData>
   if (!Number.isSafeInteger(siteId) || siteId <= 0) notFound();
   let access: Awaited<ReturnType<typeof siteForCaller>>;
   try {
-    access = await siteForCaller(await callerOf(), siteId, "viewer");
+    access = await siteForCaller({ userId: (await requireSession()).user.id }, siteId, "viewer");
   } catch (err) {
     if (err instanceof AuthError && err.code === "unauthenticated") redirect("/sign-in");
     if (err instanceof AuthError) notFound();

@@ -2,22 +2,11 @@ import "server-only";
 import { db } from "@/lib/db/knex";
 import type { SiteRow } from "@/lib/db/tables";
 import { siteParamsOf } from "@/lib/evenings/recompute";
-import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
-import { authenticateRequest } from "@/lib/auth/tokens";
+import { AuthError, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 import type { SiteParams } from "@/lib/classify/site";
 
 export type RulesSite = SiteParams & { id: number; groupId: number; name: string };
-
-/** Who asks: a script's `Authorization: Bearer` API token when it sends one, else the session cookie. */
-export async function callerOf(request?: Request): Promise<SessionUser> {
-  if (request && /^bearer\b/i.test(request.headers.get("authorization") ?? "")) {
-    const who = await authenticateRequest(request);
-    if (!who) throw new AuthError("unauthenticated");
-    return who.user;
-  }
-  return (await requireSession()).user;
-}
 
 /** The caller's role in a group: not a member -> not_found, below `minimum` -> forbidden. */
 export async function groupRole(user: SessionUser, groupId: number, minimum: Role): Promise<Role> {

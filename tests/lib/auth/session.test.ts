@@ -1,5 +1,14 @@
 import { describe, expect, test } from "vitest";
-import { getActiveGroup, getCurrentSession, listMemberships, requireRole, requireSession, setActiveGroup } from "@/lib/auth/session";
+import {
+  getActiveGroup,
+  getCurrentSession,
+  listMemberships,
+  requestCaller,
+  requireRole,
+  requireSession,
+  setActiveGroup,
+} from "@/lib/auth/session";
+import { createApiToken, revokeApiToken } from "@/lib/auth/tokens";
 import { addMember, clientFor, createGroup, createUser, createUserWithGroup } from "@/tests/support/db";
 import { FakeClient } from "@/tests/support/next";
 
@@ -21,6 +30,71 @@ describe("requireSession", () => {
     const client = await clientFor(user);
     const s = await client.call(() => requireSession());
     expect(s.user).toEqual({ id: user.id, email: user.email, displayName: "Ada Example" });
+  });
+});
+
+describe("requestCaller", () => {
+  const url = "http://localhost/api/jobs/1";
+  const other = "https://tower-data.invalid"; // RFC 6761 reserved name: never a real site
+
+  test("a bearer token on the Request is judged alone: it wins over the cookie, and a bad one is 401 beside a valid cookie", async () => {
+    const cookieOwner = await createUser();
+    const scriptOwner = await createUser();
+    const { id, secret } = await createApiToken(scriptOwner.id, "tower computer");
+    const browser = await clientFor(cookieOwner);
+    const withToken = (value: string) => new Request(url, { headers: { authorization: value } });
+
+    const byToken = await browser.call(() => requestCaller(withToken(`Bearer ${secret}`)));
+    expect(byToken).toEqual({
+      user: expect.objectContaining({ id: scriptOwner.id }),
+      sessionId: `token:${id}`,
+    });
+    await expect(browser.run(() => requestCaller(withToken("Bearer not-a-token")))).rejects.toMatchObject({
+      name: "AuthError",
+      code: "unauthenticated",
+    });
+    await revokeApiToken(scriptOwner.id, id);
+    await expect(browser.run(() => requestCaller(withToken(`Bearer ${secret}`)))).rejects.toMatchObject({
+      code: "unauthenticated",
+    });
+  });
+
+  test("without a bearer header the session of the scope answers (a proxy's Basic credentials leave it in charge)", async () => {
+    const user = await createUser();
+    const browser = await clientFor(user);
+    const basic = new Request(url, {
+      headers: { authorization: `Basic ${Buffer.from("proxy:pw").toString("base64")}` },
+    });
+    expect((await browser.call(() => requestCaller(basic))).user.id).toBe(user.id);
+    expect((await browser.call(() => requestCaller(new Request(url)))).user.id).toBe(user.id);
+    expect((await browser.call(() => requestCaller())).user.id).toBe(user.id);
+  });
+
+  test("a cookie sent with another site's Origin is refused; a bearer token from there is not", async () => {
+    const user = await createUser();
+    const { secret } = await createApiToken(user.id, "origin check");
+    const crossSite = await clientFor(user);
+    crossSite.headers.set("origin", other);
+    await expect(
+      crossSite.run(() => requestCaller(new Request(url, { headers: { origin: other } }))),
+    ).rejects.toMatchObject({
+      name: "CrossOriginError",
+    });
+    const script = new Request(url, { headers: { origin: other, authorization: `Bearer ${secret}` } });
+    expect(
+      (await new FakeClient({ headers: { origin: other } }).call(() => requestCaller(script))).user.id,
+    ).toBe(user.id);
+  });
+
+  test("nobody at all is unauthenticated, with or without a Request", async () => {
+    const anon = new FakeClient();
+    await expect(anon.run(() => requestCaller())).rejects.toMatchObject({
+      name: "AuthError",
+      code: "unauthenticated",
+    });
+    await expect(anon.run(() => requestCaller(new Request(url)))).rejects.toMatchObject({
+      code: "unauthenticated",
+    });
   });
 });
 

@@ -1,6 +1,6 @@
-import { AuthError } from "@/lib/auth/session";
+import { AuthError, requestCaller } from "@/lib/auth/session";
 import { json } from "@/lib/http/respond";
-import { callerOf, roleIn } from "@/features/imports/server/access";
+import { roleIn } from "@/features/imports/server/access";
 import { idParam, importRouteError } from "@/features/imports/server/http";
 import { getJobRow, jobView } from "@/features/imports/server/queries";
 
@@ -9,10 +9,10 @@ type Context = { params: Promise<{ jobId: string }> };
 // GET /api/jobs/:jobId - phase, progress, result (and the import with its report, for import jobs)
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
-    const caller = await callerOf(request);
+    const { user } = await requestCaller(request);
     const job = await getJobRow(idParam((await ctx.params).jobId));
     // Another group's job is as unknown as a missing one.
-    if (!job || !(await roleIn(caller.userId, job.group_id))) throw new AuthError("not_found");
+    if (!job || !(await roleIn(user.id, job.group_id))) throw new AuthError("not_found");
     return json({ job: await jobView(job) });
   } catch (err) {
     return importRouteError(err);

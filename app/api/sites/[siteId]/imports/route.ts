@@ -1,6 +1,7 @@
+import { requestCaller } from "@/lib/auth/session";
 import { json } from "@/lib/http/respond";
 import { parseSettingsJson } from "@/features/imports/schemas";
-import { callerOf, siteForCaller } from "@/features/imports/server/access";
+import { siteForCaller } from "@/features/imports/server/access";
 import { idParam, importRouteError } from "@/features/imports/server/http";
 import { startImport } from "@/features/imports/server/mutations";
 import { listImports } from "@/features/imports/server/queries";
@@ -11,8 +12,8 @@ type Context = { params: Promise<{ siteId: string }> };
 // GET /api/sites/:siteId/imports - import history of a site (any member)
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
-    const caller = await callerOf(request);
-    const { site } = await siteForCaller(caller, idParam((await ctx.params).siteId), "viewer");
+    const { user } = await requestCaller(request);
+    const { site } = await siteForCaller({ userId: user.id }, idParam((await ctx.params).siteId), "viewer");
     return json({ imports: await listImports(site.id) });
   } catch (err) {
     return importRouteError(err);
@@ -22,12 +23,12 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
 // POST /api/sites/:siteId/imports - multipart upload (part "file", optional part "mapping" as JSON); answers with the job id
 export async function POST(request: Request, ctx: Context): Promise<Response> {
   try {
-    const caller = await callerOf(request);
+    const { user } = await requestCaller(request);
     // The role is checked before a byte of the file is stored.
-    const { site } = await siteForCaller(caller, idParam((await ctx.params).siteId), "analyst");
+    const { site } = await siteForCaller({ userId: user.id }, idParam((await ctx.params).siteId), "analyst");
     const upload = await receiveUpload(request);
     const settings = parseSettingsJson(upload.fields.mapping);
-    const result = await startImport({ site, userId: caller.userId, stored: upload, filename: upload.filename, settings });
+    const result = await startImport({ site, userId: user.id, stored: upload, filename: upload.filename, settings });
     if (result.kind === "already") {
       return json({ status: "already_imported", importId: result.importId, jobId: result.jobId, sha256: upload.sha256, message: result.message });
     }

@@ -1,6 +1,7 @@
+import { requestCaller } from "@/lib/auth/session";
 import { errorResponse, json, readJson } from "@/lib/http/respond";
 import { overlapChoiceSchema } from "@/features/imports/schemas";
-import { callerOf, siteForCaller } from "@/features/imports/server/access";
+import { siteForCaller } from "@/features/imports/server/access";
 import { idParam, importRouteError } from "@/features/imports/server/http";
 import { resolveOverlap } from "@/features/imports/server/mutations";
 
@@ -10,11 +11,11 @@ type Context = { params: Promise<{ siteId: string; importId: string }> };
 export async function POST(request: Request, ctx: Context): Promise<Response> {
   try {
     const p = await ctx.params;
-    const caller = await callerOf(request);
-    const { site } = await siteForCaller(caller, idParam(p.siteId), "analyst");
+    const { user } = await requestCaller(request);
+    const { site } = await siteForCaller({ userId: user.id }, idParam(p.siteId), "analyst");
     const body = (await readJson(request)) as { choice?: unknown };
     const choice = overlapChoiceSchema.parse(body.choice);
-    const result = await resolveOverlap(site, caller.userId, idParam(p.importId), choice);
+    const result = await resolveOverlap(site, user.id, idParam(p.importId), choice);
     if (!result.ok) return errorResponse(409, "conflict", result.message);
     return json({ choice, jobId: result.jobId });
   } catch (err) {

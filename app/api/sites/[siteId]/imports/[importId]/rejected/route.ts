@@ -1,7 +1,8 @@
 import { Readable } from "node:stream";
+import { requestCaller } from "@/lib/auth/session";
 import { errorResponse } from "@/lib/http/respond";
 import { getObject } from "@/lib/storage/storage";
-import { callerOf, siteForCaller } from "@/features/imports/server/access";
+import { siteForCaller } from "@/features/imports/server/access";
 import { idParam, importRouteError } from "@/features/imports/server/http";
 import { getImport } from "@/features/imports/server/queries";
 
@@ -11,7 +12,8 @@ type Context = { params: Promise<{ siteId: string; importId: string }> };
 export async function GET(request: Request, ctx: Context): Promise<Response> {
   try {
     const p = await ctx.params;
-    const { site } = await siteForCaller(await callerOf(request), idParam(p.siteId), "viewer");
+    const { user } = await requestCaller(request);
+    const { site } = await siteForCaller({ userId: user.id }, idParam(p.siteId), "viewer");
     const found = await getImport(site.id, idParam(p.importId));
     if (!found) return errorResponse(404, "not_found", "Not found.");
     const key = found.report?.rejectedKey ?? null;
