@@ -305,8 +305,8 @@ describe("GET /api/evenings/:id and the queue", () => {
     expect(d.history[1]).toMatchObject({ fromLabel: "local", toLabel: "advective", note, user: "Test analyst" });
     expect(d.history[1]?.at).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/);
     await db("site_series").insert([
-      { site_id: s.id, slot: 2, name: "N2O", unit: "nmol/mol" },
-      { site_id: s.id, slot: 1, name: "O3", unit: "nmol/mol" },
+      { site_id: s.id, slot: 2, name: "N2O", unit: "nmol/mol", kind: "concentration" },
+      { site_id: s.id, slot: 1, name: "O3", unit: "nmol/mol", kind: "concentration" },
     ]);
     const withTracers = await detail(clients.viewer, ids[0]);
     expect(withTracers.series.columns.slice(-2).map((c) => c.key)).toEqual(["tracer_1", "tracer_2"]);
