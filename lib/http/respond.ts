@@ -126,22 +126,3 @@ export async function readJson(request: Request, limitBytes: number = JSON_BODY_
     throw new BadJsonError("The request body is not valid JSON.");
   }
 }
-
-/**
- * Whether a request's Accept-Encoding admits gzip (RFC 9110 section 12.5.3): named with a
- * q-value above zero, or covered by "*" when gzip itself is not named.
- */
-export function acceptsGzip(request: Request): boolean {
-  const header = request.headers.get("accept-encoding");
-  if (!header) return false;
-  let star: boolean | null = null;
-  for (const part of header.split(",")) {
-    const [name = "", ...params] = part.trim().toLowerCase().split(";");
-    const q = params.map((p) => p.trim()).find((p) => p.startsWith("q="));
-    const weight = q === undefined ? 1 : Number(q.slice(2));
-    const admitted = Number.isFinite(weight) && weight > 0;
-    if (name.trim() === "gzip" || name.trim() === "x-gzip") return admitted;
-    if (name.trim() === "*") star = admitted;
-  }
-  return star ?? false;
-}

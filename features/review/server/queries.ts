@@ -1,6 +1,4 @@
 import "server-only";
-import { promisify } from "node:util";
-import { gzip as gzipCallback } from "node:zlib";
 import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
 import { emptyMetrics, type EveningMetrics } from "@/lib/classify/evenings";
@@ -41,7 +39,6 @@ import { flagsByDate } from "@/features/review/flags";
  */
 
 const HOUR_MS = 3_600_000;
-const gzipAsync = promisify(gzipCallback);
 const ISO_UTC = "'%Y-%m-%dT%H:%i:%sZ'";
 
 const SUMMARY_COLUMNS = [
@@ -123,20 +120,13 @@ function roundedJson(v: unknown, fallback: unknown): string {
 }
 
 /**
- * A calendar answer: the JSON body as bytes, the same gzip-compressed (for clients that accept it,
- * which every browser does: compressed once per change instead of on every request), and the
- * entity tag of each.
+ * A calendar answer: the JSON body as bytes and its entity tag. (It is not kept compressed: Next
+ * drops a route handler's own Content-Encoding and compresses for the client itself.)
  */
-export type CalendarBody = {
-  body: Uint8Array<ArrayBuffer>;
-  gzip: Uint8Array<ArrayBuffer>;
-  etag: string;
-  gzipEtag: string;
-};
+export type CalendarBody = { body: Uint8Array<ArrayBuffer>; etag: string };
 
 // Built bodies, valid only at the change stamp of their site and period (lib/evenings/stamp.ts).
-// A site-year is about 300 kB plain and 35 kB compressed; 48 MB holds every month and year a
-// department has open.
+// A site-year is about 300 kB; 48 MB holds every month and year a department has open.
 const calendarCache = new StampedCache<CalendarBody>(400, 48 * 1024 * 1024);
 // Bumped when the shape of the body changes, so that no browser keeps an old body on a 304.
 const CALENDAR_FORMAT = "c1";
@@ -165,16 +155,12 @@ async function buildCalendar(siteId: number, range: DateRange) {
       `"reviewed":${r.reviewed ? "true" : "false"},"version":${Number(r.version)}}`,
   );
   const body = new TextEncoder().encode(`{"evenings":[${parts.join(",")}]}`);
-  const packed = await gzipAsync(body);
-  const gzip = new Uint8Array(packed.buffer.slice(packed.byteOffset, packed.byteOffset + packed.byteLength));
-  const etag = `"${CALENDAR_FORMAT}.${stamp}"`;
-  const value = { body, gzip, etag, gzipEtag: `"${CALENDAR_FORMAT}.${stamp}.gz"` };
-  return { stamp, value, bytes: body.byteLength + gzip.byteLength };
+  return { stamp, value: { body, etag: `"${CALENDAR_FORMAT}.${stamp}"` }, bytes: body.byteLength };
 }
 
 /**
  * The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`, metrics to four
- * significant digits) with its ETag, plain and compressed. Pass the period's change stamp when
+ * significant digits) and its ETag. Pass the period's change stamp when
  * it was read already (siteAccessStamped reads it with the access check); otherwise it is read
  * here. The body built at that stamp is served from memory and rebuilt when the evenings changed
  * since: a change is visible to the very next request.

@@ -1,5 +1,5 @@
 import { AuthError } from "@/lib/auth/session";
-import { acceptsGzip, handleRouteError } from "@/lib/http/respond";
+import { handleRouteError } from "@/lib/http/respond";
 import { idSchema, rangeSchema } from "@/features/review/schemas";
 import { caller, siteAccessStamped } from "@/features/review/server/access";
 import { listEveningsBody } from "@/features/review/server/queries";
@@ -24,16 +24,13 @@ export async function GET(request: Request, ctx: Context): Promise<Response> {
     const range = rangeSchema.parse({ from: q.get("from") ?? undefined, to: q.get("to") ?? undefined });
     // access and the change stamp in one round trip; a refusal still comes before any evening is read
     const { stamp } = await siteAccessStamped(user, siteId.data, range);
-    const answer = await listEveningsBody(siteId.data, range, stamp);
-    // The compressed body was made once, when the evenings last changed; a client that takes
-    // gzip gets it as is (the server's own compression leaves an encoded body alone).
-    const gzip = acceptsGzip(request);
-    const etag = gzip ? answer.gzipEtag : answer.etag;
-    const headers: Record<string, string> = { etag, "cache-control": CACHE_CONTROL, vary: "Accept-Encoding" };
-    if (matches(request.headers.get("if-none-match"), etag)) return new Response(null, { status: 304, headers });
-    headers["content-type"] = "application/json; charset=utf-8";
-    if (gzip) headers["content-encoding"] = "gzip";
-    return new Response(gzip ? answer.gzip : answer.body, { headers });
+    const { body, etag } = await listEveningsBody(siteId.data, range, stamp);
+    if (matches(request.headers.get("if-none-match"), etag)) {
+      return new Response(null, { status: 304, headers: { etag, "cache-control": CACHE_CONTROL } });
+    }
+    return new Response(body, {
+      headers: { "content-type": "application/json; charset=utf-8", etag, "cache-control": CACHE_CONTROL },
+    });
   } catch (err) {
     return handleRouteError(err);
   }
