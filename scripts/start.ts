@@ -14,6 +14,7 @@ import { closeDb, db } from "../lib/db/knex";
 import { env } from "../lib/env";
 import { startDatabase } from "./db";
 import { startCatcherFromEnv } from "./mail-catcher";
+import { WEB_NODE_FLAGS } from "./web-flags";
 import { superviseWorker } from "./worker-process";
 
 const root = process.cwd();
@@ -73,7 +74,8 @@ async function main(): Promise<void> {
     if (r.status !== 0) process.exit(r.status ?? 1);
   }
   log(`serving ${env.APP_URL}`);
-  const child = spawn(process.execPath, [nextBin, dev ? "dev" : "start", "-p", port], { stdio: "inherit", env: childEnv });
+  const args = dev ? [nextBin, "dev", "-p", port] : [...WEB_NODE_FLAGS, nextBin, "start", "-p", port];
+  const child = spawn(process.execPath, args, { stdio: "inherit", env: childEnv });
   // The job worker runs beside Next; both stop together.
   const worker = superviseWorker({ dev, env: childEnv, log });
   for (const sig of ["SIGINT", "SIGTERM"] as const)
