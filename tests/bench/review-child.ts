@@ -5,7 +5,10 @@
  * connections, 8 s, one session) or "load" (50 connections, 30 s, each connection its own
  * signed-in person). Besides latency it prints the CPU time the server process spent per
  * request, which other work on the machine does not inflate the way it does latency, and the
- * load average at the end of each run.
+ * load average at the end of each run. The review plan measures each endpoint twice: as a
+ * browser asks (Accept-Encoding: gzip and others; Next then compresses the evening answer, while
+ * the calendar's goes out plain, see DEVELOPERS.md "Fast reads") and without Accept-Encoding, as
+ * a plain script asks. Both plans first measure a floor: a route handler that does no work.
  */
 import { spawn, spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
@@ -16,6 +19,7 @@ import { join } from "node:path";
 import { createRequire } from "node:module";
 import { get as httpGet } from "node:http";
 import { createMigratedDatabase, dropDatabase } from "@/tests/support/database";
+import { WEB_NODE_FLAGS } from "@/scripts/web-flags";
 
 // autocannon ships no types; the part used here, typed locally.
 type Result = {
@@ -88,17 +92,18 @@ function loadAverage(): string {
   }
 }
 
-async function load(title: string, url: string, cookies: string[], paths: string[], serverPgid: number): Promise<void> {
-  const times: number[] = [];
+const WARM_UP_SECONDS = 3;
+const WARM_UP_ALL_SECONDS = 15;
+
+// autocannon at the plan's connections against `paths` in turn, for `seconds`.
+function fire(url: string, cookies: string[], paths: string[], encoding: string | null, seconds: number): Instance {
   let i = 0;
   let handed = 0;
-  const cpu0 = groupCpuMs(serverPgid);
-  const instance = autocannon({
+  return autocannon({
     url,
     connections: PLAN.connections,
-    duration: PLAN.seconds,
-    // no Accept-Encoding: the figures are of the endpoints, not of the server's gzip
-    headers: { accept: "application/json", cookie: cookies[0]! },
+    duration: seconds,
+    headers: { accept: "application/json", cookie: cookies[0]!, ...(encoding ? { "accept-encoding": encoding } : {}) },
     requests: [
       {
         setupRequest: (req, context) => {
@@ -110,15 +115,39 @@ async function load(title: string, url: string, cookies: string[], paths: string
       },
     ],
   });
-  instance.on("response", (_client, _status, _bytes, ms) => times.push(ms));
+}
+
+// Browsers (and so the app's own pages) send this; scripts often send none.
+const BROWSER_ENCODING = "gzip, deflate, br, zstd";
+
+async function load(
+  title: string,
+  url: string,
+  cookies: string[],
+  paths: string[],
+  serverPgid: number,
+  encoding: string | null,
+  expectStatus = 200,
+): Promise<void> {
+  // An untimed run first: the server's code paths for this request are compiled by the JIT and
+  // its caches are filled, as on a server that has been running for a while.
+  await fire(url, cookies, paths, encoding, WARM_UP_SECONDS);
+  const times: number[] = [];
+  const cpu0 = groupCpuMs(serverPgid);
+  const instance = fire(url, cookies, paths, encoding, PLAN.seconds);
+  let wrong = 0;
+  instance.on("response", (_client, status, _bytes, ms) => {
+    times.push(ms);
+    if (status !== expectStatus) wrong++;
+  });
   const r = await instance;
   const cpuMs = groupCpuMs(serverPgid) - cpu0;
   times.sort((a, b) => a - b);
-  const bad = r.non2xx + r.errors + r.timeouts;
+  const bad = wrong + r.errors + r.timeouts;
   console.log(
-    `  ${title}: ${r.requests.total} requests in ${PLAN.seconds} s at ${PLAN.connections} connections, ${r.requests.average.toFixed(0)} req/s, ` +
+    `  ${title}, ${encoding ? "as a browser asks (Accept-Encoding: gzip...)" : "without Accept-Encoding"}: ${r.requests.total} requests in ${PLAN.seconds} s at ${PLAN.connections} connections, ${r.requests.average.toFixed(0)} req/s, ` +
       `p50 ${percentile(times, 50).toFixed(1)} ms, p95 ${percentile(times, 95).toFixed(1)} ms, p99 ${percentile(times, 99).toFixed(1)} ms, ` +
-      `${(r.throughput.average / 1e6).toFixed(1)} MB/s, errors/non-2xx ${bad}, ` +
+      `${(r.throughput.average / 1e6).toFixed(1)} MB/s, errors or unexpected statuses ${bad}, ` +
       `server CPU ${r.requests.total > 0 ? (cpuMs / r.requests.total).toFixed(2) : "n/a"} ms/request, load average ${loadAverage()}`,
   );
 }
@@ -186,7 +215,8 @@ async function inner(): Promise<void> {
     }
     const port = 3900 + Math.floor(Math.random() * 90);
     const origin = `http://127.0.0.1:${port}`;
-    server = spawn(process.execPath, [NEXT_BIN, "start", "-p", String(port), "-H", "127.0.0.1"], {
+    // started as `npm start` starts it (scripts/start.ts): the same Node flags
+    server = spawn(process.execPath, [...WEB_NODE_FLAGS, NEXT_BIN, "start", "-p", String(port), "-H", "127.0.0.1"], {
       env: { ...process.env, NODE_ENV: "production", NEXT_TELEMETRY_DISABLED: "1", DATABASE_URL: url, APP_URL: origin },
       stdio: "ignore",
       detached: true,
@@ -211,18 +241,23 @@ async function inner(): Promise<void> {
     if (yearCount !== ids.length) throw new Error(`the site-year answer holds ${yearCount} evenings, expected ${ids.length}`);
     const sent = await rawBytes(`${origin}${yearPath}`, { ...headers, "accept-encoding": "gzip, deflate" });
     console.log(`  one site-year answer: ${(year.length / 1024).toFixed(0)} kB, ${(sent.bytes / 1024).toFixed(0)} kB as sent (${sent.encoding})`);
-    // A few warm-up requests so the first compiled paths are not timed.
-    for (let w = 0; w < 20; w++) {
-      await (await fetch(`${origin}/api/evenings/${ids[w % ids.length]}`, { headers })).text();
-      if (PLAN_NAME === "load") await (await fetch(`${origin}${seasonsPath}`, { headers })).text();
-    }
+    // Warm-up, untimed: every measured path in turn for a while, so that the JIT has compiled
+    // them and the pools are full, as on a server that has been running for some time (the first
+    // ~20 s after a start are markedly slower).
+    const everyPath = [yearPath, ...ids.slice(0, 50).map((id) => `/api/evenings/${id}`), ...(PLAN_NAME === "load" ? [seasonsPath] : [])];
+    await fire(origin, cookies, everyPath, BROWSER_ENCODING, WARM_UP_ALL_SECONDS);
+    await fire(origin, [""], ["/api/sites"], null, WARM_UP_SECONDS);
     console.log(`  plan ${PLAN_NAME}: ${PLAN.connections} connections, ${PLAN.seconds} s per endpoint, ${cookies.length} signed-in session(s); load average before ${loadAverage()}`);
-    await load("GET /api/sites/:id/evenings (site-year)", origin, cookies, [yearPath], pgid);
-    await load("GET /api/evenings/:id (year of evenings, cycled)", origin, cookies, ids.map((id) => `/api/evenings/${id}`), pgid);
+    // The floor: a route handler that answers 401 from the missing cookie alone (no query, 80 bytes).
+    await load("floor: GET /api/sites without a session (401)", origin, [""], ["/api/sites"], pgid, BROWSER_ENCODING, 401);
+    for (const encoding of PLAN_NAME === "review" ? [BROWSER_ENCODING, null] : [BROWSER_ENCODING]) {
+      await load("GET /api/sites/:id/evenings (site-year)", origin, cookies, [yearPath], pgid, encoding);
+      await load("GET /api/evenings/:id (year of evenings, cycled)", origin, cookies, ids.map((id) => `/api/evenings/${id}`), pgid, encoding);
+    }
     if (PLAN_NAME === "load") {
       const seasons = await (await fetch(`${origin}${seasonsPath}`, { headers })).text();
       console.log(`  one seasons answer (every year of the site): ${(seasons.length / 1024).toFixed(0)} kB`);
-      await load("GET /api/seasons (one site, all years)", origin, cookies, [seasonsPath], pgid);
+      await load("GET /api/seasons (one site, all years)", origin, cookies, [seasonsPath], pgid, BROWSER_ENCODING);
     }
   } finally {
     if (server?.pid) {
