@@ -1,7 +1,7 @@
 import "server-only";
 import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
-import { AuthError, requireSession, type SessionUser } from "@/lib/auth/session";
+import { AuthError, requestCaller, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 import { stampQuery } from "@/lib/evenings/stamp";
 
@@ -20,9 +20,9 @@ export type ReviewSite = {
   utcOffsetHours: number;
 };
 
-/** The caller of a route handler or page (session cookie; API tokens once they exist). */
-export async function caller(_request?: Request): Promise<SessionUser> {
-  return (await requireSession()).user;
+/** The caller of a route handler or page: an API token (Bearer) or the session cookie. */
+export async function caller(request?: Request): Promise<SessionUser> {
+  return (await requestCaller(request)).user;
 }
 
 function check(role: Role | null, minimum: Role): Role {
