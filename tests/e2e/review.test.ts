@@ -1,17 +1,15 @@
-import { createRequire } from "node:module";
 import type { Page } from "playwright-core";
 import { describe, expect, test } from "vitest";
 import { db } from "@/lib/db/knex";
 import { DEMO_GROUP_NAME, DEMO_PASSWORD, DEMO_SITE } from "@/lib/demo/scenario";
 import { DEMO_INJECTED_RISES, seedDemoData } from "@/db/seeds/02_demo_data";
 import { appInBrowserForFile, screenshot } from "@/tests/support/browser";
+import { seriousViolations } from "@/tests/support/axe";
 
 /*
  * The demo analyst reviews evenings without the mouse: calendar, evening page, an override
  * with a note, the history. The demo data is synthetic (db/seeds/02_demo_data.ts).
  */
-
-const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
 
 let siteId: number;
 
@@ -25,20 +23,6 @@ const rig = appInBrowserForFile({
   },
 });
 
-type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
-
-/** axe-core over the whole page; returns the serious and critical violations. */
-async function seriousViolations(page: Page): Promise<AxeViolation[]> {
-  await page.evaluate(axeSource);
-  const result = await page.evaluate(async () => {
-    const w = window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<{ violations: AxeViolation[] }> } };
-    // The whole document: the shell (navigation, account and group buttons) as well as the page.
-    return w.axe.run(document, { resultTypes: ["violations"] });
-  });
-  return result.violations
-    .filter((v) => v.impact === "serious" || v.impact === "critical")
-    .map((v) => ({ ...v, nodes: v.nodes.slice(0, 5) }));
-}
 
 async function activeDate(page: Page): Promise<string | null> {
   return page.evaluate(() => document.activeElement?.getAttribute("data-date") ?? null);

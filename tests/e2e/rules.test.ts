@@ -1,7 +1,6 @@
-import { createRequire } from "node:module";
-import type { Page } from "playwright-core";
 import { describe, expect, test } from "vitest";
 import { screenshot, signInAs, appInBrowserForFile } from "@/tests/support/browser";
+import { seriousViolations } from "@/tests/support/axe";
 import { db } from "@/lib/db/knex";
 import { seedDemoData } from "@/db/seeds/02_demo_data";
 
@@ -10,24 +9,10 @@ import { seedDemoData } from "@/db/seeds/02_demo_data";
  * after, over the demo's synthetic evenings. Nothing is saved.
  */
 
-const axeSource = (createRequire(import.meta.url)("axe-core") as { source: string }).source;
-
 // The editor needs a rule set and the preview evenings: the demo data gives both (it seeds the
 // scenario too), so the test does not depend on another file having imported them first.
 const rig = appInBrowserForFile({ prepare: () => seedDemoData(db) });
 
-type AxeViolation = { id: string; impact: string | null; help: string; nodes: Array<{ target: string[] }> };
-
-async function seriousViolations(page: Page): Promise<AxeViolation[]> {
-  await page.evaluate(axeSource);
-  const result = await page.evaluate(async () => {
-    const w = window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<{ violations: AxeViolation[] }> } };
-    return w.axe.run(document, { resultTypes: ["violations"] });
-  });
-  return result.violations
-    .filter((v) => v.impact === "serious" || v.impact === "critical")
-    .map((v) => ({ ...v, nodes: v.nodes.slice(0, 5) }));
-}
 
 describe("the rules page", () => {
   test("the demo lead previews a threshold change and reads the what-if counts", { timeout: 180_000 }, async () => {
