@@ -281,6 +281,9 @@ describe("revert and reviewed", () => {
 describe("GET /api/evenings/:id and the queue", () => {
   test("the evening detail carries thresholds with the deciding rule, neighbours and an empty series", async () => {
     const { ids, clients } = await scene();
+    const res = await clients.viewer.call(() => eveningGET(get(`/api/evenings/${ids[1]}`), eve(ids[1])));
+    // per person, asked again each time, and sent as it is (no per-request compression)
+    expect(res.headers.get("cache-control")).toBe("private, no-cache, no-transform");
     const d = await detail(clients.viewer, ids[1]);
     expect(d.neighbours.previous?.id).toBe(ids[0]);
     expect(d.neighbours.next?.id).toBe(ids[2]);

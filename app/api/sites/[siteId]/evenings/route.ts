@@ -1,18 +1,14 @@
 import { AuthError } from "@/lib/auth/session";
-import { handleRouteError } from "@/lib/http/respond";
+import { handleRouteError, PRIVATE_UNCOMPRESSED } from "@/lib/http/respond";
 import { idSchema, rangeSchema } from "@/features/review/schemas";
 import { caller, siteAccessStamped } from "@/features/review/server/access";
 import { listEveningsBody } from "@/features/review/server/queries";
 
 type Context = { params: Promise<{ siteId: string }> };
 
-// private: the answer depends on who asks; no-cache: the browser asks again every time and gets
-// a 304 while the ETag (the evenings' change stamp) still matches. no-transform: Next's own
-// compression leaves the body alone. Compressing a site-year (300 kB of JSON) costs about 5 ms
-// of server CPU on every request, more than serving it from the cache, and Next drops a route
-// handler's Content-Encoding, so a body compressed once per change cannot be sent instead (see
-// DEVELOPERS.md, "Fast reads").
-const CACHE_CONTROL = "private, no-cache, no-transform";
+// See PRIVATE_UNCOMPRESSED: a 304 while the ETag (the evenings' change stamp) still matches, and
+// the body plain.
+const CACHE_CONTROL = PRIVATE_UNCOMPRESSED;
 
 function matches(ifNoneMatch: string | null, etag: string): boolean {
   return ifNoneMatch !== null && ifNoneMatch.split(",").some((t) => t.trim().replace(/^W\//, "") === etag);
