@@ -26,10 +26,10 @@ const globalForDb = globalThis as unknown as { gloamingKnex?: Knex; gloamingPool
 export const db: Knex = globalForDb.gloamingKnex ?? knex(knexConfig());
 globalForDb.gloamingKnex = db;
 
-/** A mysql2/promise pool on the same database, for lucia's adapter. */
+/** A mysql2/promise pool on the same database, for lucia's adapter and compiled reads (lib/db/compiled.ts). */
 export function mysqlPool(): Pool {
   if (!globalForDb.gloamingPool) {
-    const pool = createPool({ ...connectionOptions(), connectionLimit: 5 });
+    const pool = createPool({ ...connectionOptions(), connectionLimit: 10 });
     pool.on("connection", (conn) => {
       void conn.query(UTC_SESSION_SQL);
     });

@@ -1,6 +1,7 @@
 import "server-only";
 import type { Knex } from "knex";
 import { db } from "@/lib/db/knex";
+import { compiledRead } from "@/lib/db/compiled";
 import { emptyMetrics, type EveningMetrics } from "@/lib/classify/evenings";
 import { DEFAULT_RULE_SET, parseRuleSet, type RuleSet } from "@/lib/classify/rules";
 import { AuthError } from "@/lib/auth/session";
@@ -261,28 +262,32 @@ async function tracersOf(siteId: number): Promise<Tracer[]> {
     .select<Tracer[]>("slot", "name", "unit");
 }
 
+// Half-hours of a site starting inside (fromS, toS), Unix seconds, with their start in ms as `t`.
+const windowRows = compiledRead<
+  { siteId: number; fromS: number; toS: number },
+  Record<string, number | null> & { t: number | string }
+>({ siteId: -7_321, fromS: -7_322, toS: -7_323 }, (p) =>
+  db("half_hours")
+    .where("site_id", p.siteId)
+    .where("start_utc", ">", db.raw("FROM_UNIXTIME(?)", [p.fromS]))
+    .where("start_utc", "<", db.raw("FROM_UNIXTIME(?)", [p.toS]))
+    .orderBy("start_utc")
+    .select([db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"), ...MEASURES.map((m) => m.col), ...TRACER_COLUMNS]),
+);
+
 /** The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. */
 export async function eveningSeries(
   siteId: number,
   centreMs: number,
   knownTracers?: Tracer[],
 ): Promise<EveningSeries> {
-  const cols = [...MEASURES.map((m) => m.col), ...TRACER_COLUMNS];
   // Periods that overlap the window: a half-hour starting 30 min before it still reaches in.
   const fromMs = centreMs - 4 * HOUR_MS - 30 * 60_000;
   const toMs = centreMs + 4 * HOUR_MS;
   // Every tracer slot is read beside the names of the slots in use, so neither waits for the other.
   const [tracers, rows] = await Promise.all([
     knownTracers ?? tracersOf(siteId),
-    db("half_hours")
-      .where("site_id", siteId)
-      .where("start_utc", ">", new Date(fromMs))
-      .where("start_utc", "<", new Date(toMs))
-      .orderBy("start_utc")
-      .select<Array<Record<string, number | null> & { t: number | string }>>([
-        db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"),
-        ...cols,
-      ]),
+    windowRows({ siteId, fromS: fromMs / 1000, toS: toMs / 1000 }),
   ]);
   const starts = rows.map((r) => Number(r.t));
   let periodMinutes = 30;
@@ -392,6 +397,16 @@ function detailQuery(eveningId: number): Knex.QueryBuilder {
     .limit(1);
 }
 
+// The detail reads of every evening page and GET /api/evenings/:id, compiled once (lib/db/compiled.ts).
+const detailOfSite = compiledRead<{ eveningId: number; siteId: number }, DetailRow>(
+  { eveningId: -7_301, siteId: -7_302 },
+  (p) => detailQuery(p.eveningId).where("e.site_id", p.siteId),
+);
+const detailForUser = compiledRead<{ eveningId: number; userId: string }, DetailRow & AccessRow>(
+  { eveningId: -7_311, userId: "\u0000sentinel:user" },
+  (p) => withEveningAccess(detailQuery(p.eveningId), p.userId).select(ACCESS_COLUMNS),
+);
+
 async function assembleDetail(row: DetailRow, site: ReviewSite): Promise<EveningDetail> {
   const summary = toSummary(row);
   const margins = parsed<Record<string, number>>(row.margins, {});
@@ -436,7 +451,7 @@ async function assembleDetail(row: DetailRow, site: ReviewSite): Promise<Evening
  * Throws AuthError("not_found") for an unknown id or an evening of another site.
  */
 export async function getEveningDetail(eveningId: number, site: ReviewSite): Promise<EveningDetail> {
-  const rows = (await detailQuery(eveningId).where("e.site_id", site.id)) as DetailRow[];
+  const rows = await detailOfSite({ eveningId, siteId: site.id });
   const row = rows[0];
   if (!row) throw new AuthError("not_found");
   return assembleDetail(row, site);
@@ -451,9 +466,7 @@ export async function eveningDetailFor(
   eveningId: number,
   minimum: Role = "viewer",
 ): Promise<EveningDetail> {
-  const rows: Array<DetailRow & AccessRow> = await withEveningAccess(detailQuery(eveningId), user.id).select(
-    ACCESS_COLUMNS,
-  );
+  const rows = await detailForUser({ eveningId, userId: user.id });
   const { site } = judgeAccess(rows[0], minimum);
   return assembleDetail(rows[0]!, site);
 }
