@@ -92,8 +92,8 @@ function loadAverage(): string {
   }
 }
 
-const WARM_UP_SECONDS = 3;
-const WARM_UP_ALL_SECONDS = 15;
+const WARM_UP_SECONDS = 5;
+const WARM_UP_ALL_SECONDS = 20;
 
 // autocannon at the plan's connections against `paths` in turn, for `seconds`.
 function fire(url: string, cookies: string[], paths: string[], encoding: string | null, seconds: number): Instance {
@@ -244,7 +244,7 @@ async function inner(): Promise<void> {
     // Warm-up, untimed: every measured path in turn for a while, so that the JIT has compiled
     // them and the pools are full, as on a server that has been running for some time (the first
     // ~20 s after a start are markedly slower).
-    const everyPath = [yearPath, ...ids.slice(0, 50).map((id) => `/api/evenings/${id}`), ...(PLAN_NAME === "load" ? [seasonsPath] : [])];
+    const everyPath = [yearPath, ...ids.map((id) => `/api/evenings/${id}`), ...(PLAN_NAME === "load" ? [seasonsPath] : [])];
     await fire(origin, cookies, everyPath, BROWSER_ENCODING, WARM_UP_ALL_SECONDS);
     await fire(origin, [""], ["/api/sites"], null, WARM_UP_SECONDS);
     console.log(`  plan ${PLAN_NAME}: ${PLAN.connections} connections, ${PLAN.seconds} s per endpoint, ${cookies.length} signed-in session(s); load average before ${loadAverage()}`);
