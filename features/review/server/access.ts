@@ -4,6 +4,7 @@ import { db } from "@/lib/db/knex";
 import { AuthError, requestCaller, type SessionUser } from "@/lib/auth/session";
 import { isRole, roleAtLeast, type Role } from "@/lib/auth/roles";
 import { stampQuery } from "@/lib/evenings/stamp";
+import { compiledRead } from "@/lib/db/compiled";
 
 /*
  * Who is asking and what they may see. Every reader and mutation of this feature goes through
@@ -110,12 +111,19 @@ export async function siteAccessStamped(
   range: { from: string; to: string },
   minimum: Role = "viewer",
 ): Promise<{ site: ReviewSite; role: Role; stamp: string }> {
-  const row: (AccessRow & { stamp: string | null }) | undefined = await withMembership(
-    db("sites as s").where("s.id", siteId),
-    user.id,
-  ).first([...ACCESS_COLUMNS, stampQuery({ siteIds: [siteId], ...range }).as("stamp")]);
+  const [row] = await accessAndStamp({ siteId, userId: user.id, from: range.from, to: range.to });
   return { ...judgeAccess(row, minimum), stamp: row?.stamp ?? "0.0.0" };
 }
+
+// The read of every calendar request, compiled once (lib/db/compiled.ts).
+const accessAndStamp = compiledRead<
+  { siteId: number; userId: string; from: string; to: string },
+  AccessRow & { stamp: string | null }
+>({ siteId: -7_401, userId: "\u0000sentinel:user", from: "\u0000sentinel:from", to: "\u0000sentinel:to" }, (p) =>
+  withMembership(db("sites as s").where("s.id", p.siteId), p.userId)
+    .select([...ACCESS_COLUMNS, stampQuery({ siteIds: [p.siteId], from: p.from, to: p.to }).as("stamp")])
+    .limit(1),
+);
 
 /** The site of an evening `user` may see with at least `minimum`, and their role. */
 export async function eveningAccess(
