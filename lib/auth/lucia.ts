@@ -11,8 +11,8 @@ type SessionUserRow = RowDataPacket & { id: string; user_id: string; expires_at:
 
 /**
  * lucia's MySQL adapter, with the check that runs on every signed-in request done in one round
- * trip: the stock adapter reads the session and its user with two queries. Everything else
- * (creating, extending and deleting sessions) is the stock adapter's.
+ * trip (a prepared statement): the stock adapter reads the session and its user with two
+ * queries. Everything else (creating, extending and deleting sessions) is the stock adapter's.
  */
 export class SessionAdapter extends Mysql2Adapter {
   constructor(private readonly pool: Pool) {
@@ -20,7 +20,7 @@ export class SessionAdapter extends Mysql2Adapter {
   }
 
   override async getSessionAndUser(sessionId: string): Promise<[DatabaseSession | null, DatabaseUser | null]> {
-    const [rows] = await this.pool.query<SessionUserRow[]>(
+    const [rows] = await this.pool.execute<SessionUserRow[]>(
       "SELECT s.id, s.user_id, s.expires_at, u.email, u.display_name FROM user_sessions s JOIN users u ON u.id = s.user_id WHERE s.id = ?",
       [sessionId],
     );
