@@ -161,17 +161,11 @@ async function buildCalendar(siteId: number, range: DateRange) {
 
 /**
  * The body of GET /api/sites/:id/evenings (`{ evenings: EveningSummary[] }`, metrics to four
- * significant digits) and its ETag. Pass the period's change stamp when
- * it was read already (siteAccessStamped reads it with the access check); otherwise it is read
- * here. The body built at that stamp is served from memory and rebuilt when the evenings changed
- * since: a change is visible to the very next request.
+ * significant digits) and its ETag, for the period's change `stamp` as siteAccessStamped read it
+ * with the access check. The body built at that stamp is served from memory and rebuilt when the
+ * evenings changed since: a change is visible to the very next request.
  */
-export async function listEveningsBody(
-  siteId: number,
-  range: DateRange,
-  knownStamp?: string,
-): Promise<CalendarBody> {
-  const stamp = knownStamp ?? (await eveningsStamp({ siteIds: [siteId], ...range }));
+export async function listEveningsBody(siteId: number, range: DateRange, stamp: string): Promise<CalendarBody> {
   return calendarCache.get(`${siteId}|${range.from}|${range.to}`, stamp, () => buildCalendar(siteId, range));
 }
 
@@ -255,13 +249,6 @@ type Tracer = { slot: number; name: string; unit: string };
 const TRACERS_JSON = `CAST((SELECT JSON_ARRAYAGG(JSON_OBJECT('slot', t.slot, 'name', t.name, 'unit', t.unit) ORDER BY t.slot)
    FROM site_series t WHERE t.site_id = e.site_id) AS CHAR) AS tracers_json`;
 
-async function tracersOf(siteId: number): Promise<Tracer[]> {
-  return db("site_series")
-    .where({ site_id: siteId })
-    .orderBy("slot")
-    .select<Tracer[]>("slot", "name", "unit");
-}
-
 // Half-hours of a site starting inside (fromS, toS), Unix seconds, with their start in ms as `t`.
 const windowRows = compiledRead<
   { siteId: number; fromS: number; toS: number },
@@ -275,20 +262,15 @@ const windowRows = compiledRead<
     .select([db.raw("UNIX_TIMESTAMP(start_utc) * 1000 AS t"), ...MEASURES.map((m) => m.col), ...TRACER_COLUMNS]),
 );
 
-/** The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. */
-export async function eveningSeries(
-  siteId: number,
-  centreMs: number,
-  knownTracers?: Tracer[],
-): Promise<EveningSeries> {
+/**
+ * The half-hours from 4 h before to 4 h after `centreMs`, as plot-ready columns. Every tracer slot
+ * is read; `tracers` (the slots in use, read with the evening) names those that are shown.
+ */
+async function eveningSeries(siteId: number, centreMs: number, tracers: Tracer[]): Promise<EveningSeries> {
   // Periods that overlap the window: a half-hour starting 30 min before it still reaches in.
   const fromMs = centreMs - 4 * HOUR_MS - 30 * 60_000;
   const toMs = centreMs + 4 * HOUR_MS;
-  // Every tracer slot is read beside the names of the slots in use, so neither waits for the other.
-  const [tracers, rows] = await Promise.all([
-    knownTracers ?? tracersOf(siteId),
-    windowRows({ siteId, fromS: fromMs / 1000, toS: toMs / 1000 }),
-  ]);
+  const rows = await windowRows({ siteId, fromS: fromMs / 1000, toS: toMs / 1000 });
   const starts = rows.map((r) => Number(r.t));
   let periodMinutes = 30;
   for (let i = 1; i < starts.length; i++)
@@ -422,7 +404,8 @@ async function assembleDetail(row: DetailRow, site: ReviewSite): Promise<Evening
   const storedHistory = jsonArray<HistoryRow>(row.history_json);
   const [events, series] = await Promise.all([
     storedHistory ? toHistory(storedHistory) : history(summary.id),
-    eveningSeries(site.id, centreMs, jsonArray<Tracer>(row.tracers_json) ?? undefined),
+    // at most 8 short entries: never cut short like a long history
+    eveningSeries(site.id, centreMs, parsed<Tracer[]>(row.tracers_json, [])),
   ]);
   return {
     evening: {
