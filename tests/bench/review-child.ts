@@ -11,14 +11,12 @@
  * a plain script asks. Both plans first measure a floor: a route handler that does no work.
  */
 import { spawn, spawnSync } from "node:child_process";
-import { randomBytes } from "node:crypto";
-import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { existsSync, readFileSync, readdirSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { join } from "node:path";
 import { createRequire } from "node:module";
 import { get as httpGet } from "node:http";
-import { createMigratedDatabase, dropDatabase } from "@/tests/support/database";
+import { runInnerStage, stageDir } from "@/tests/bench/stage";
 import { WEB_NODE_FLAGS } from "@/scripts/web-flags";
 
 // autocannon ships no types; the part used here, typed locally.
@@ -152,27 +150,6 @@ async function load(
   );
 }
 
-// lib/env reads the environment once, at import: the database and data directory are chosen by
-// an outer stage that starts this file again with them set, before any app module loads.
-async function outer(): Promise<void> {
-  const { startDatabase } = await import("@/scripts/db");
-  const { env } = await import("@/lib/env");
-  await startDatabase();
-  const base = new URL(env.DATABASE_URL);
-  const name = `${decodeURIComponent(base.pathname.slice(1)) || "gloaming"}_test_bench_${randomBytes(3).toString("hex")}`;
-  const url = await createMigratedDatabase(env.DATABASE_URL, name);
-  const dir = mkdtempSync(join(tmpdir(), "gloaming-review-bench-"));
-  try {
-    const childEnv = { ...process.env, DATABASE_URL: url, DATA_DIR: join(dir, "data"), REVIEW_BENCH_INNER: "1" };
-    const inner = spawn(process.execPath, ["--conditions=react-server", "--import", "tsx", fileURLToPath(import.meta.url)], { env: childEnv, stdio: "inherit" });
-    const code = await new Promise<number | null>((resolve) => inner.on("exit", resolve));
-    if (code !== 0) throw new Error(`the measuring stage failed (exit ${code})`);
-  } finally {
-    await dropDatabase(env.DATABASE_URL, name);
-    rmSync(dir, { recursive: true, force: true });
-  }
-}
-
 async function inner(): Promise<void> {
   const url = process.env.DATABASE_URL!;
   let server: ReturnType<typeof spawn> | null = null;
@@ -270,4 +247,5 @@ async function inner(): Promise<void> {
   }
 }
 
-await (process.env.REVIEW_BENCH_INNER ? inner() : outer());
+// The throwaway database and data folder are chosen by the outer stage (stage.ts).
+await (stageDir ? inner() : runInnerStage(fileURLToPath(import.meta.url), "review"));
